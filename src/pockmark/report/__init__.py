@@ -1,0 +1,1 @@
+"""Summaries, tables and files made from an assessment."""

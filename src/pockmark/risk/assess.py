@@ -1,0 +1,252 @@
+"""The whole analysis of one case: mesh, shields, environment, visibility, risk per face.
+
+:func:`assess` is the library entry point that the ``pockmark run`` command wraps. It returns
+an :class:`Assessment` holding per-face arrays (one entry per triangle, in the mesh's face
+order) and per-phase totals; :mod:`pockmark.report.summary` turns it into tables and JSON.
+"""
+
+import logging
+import math
+import time
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from pockmark import environment
+from pockmark.ballistics.shields import make_shield
+from pockmark.errors import ConfigError, InputError, MeshError
+from pockmark.geometry.frames import body_from_orbital
+from pockmark.io import load_mesh
+from pockmark.risk.impacts import interpolate_angles, penetration_table
+from pockmark.visibility import VisibilityEngine
+
+logger = logging.getLogger(__name__)
+
+#: Debris fluxes of a phase are averaged over time samples at most this far apart [yr].
+DEBRIS_TIME_STEP = 0.5
+
+#: Upper bound on faces × directions held in memory at once by the integration.
+CHUNK_ELEMENTS = 4_000_000
+
+
+@dataclass(frozen=True)
+class TimeAveragedFlux:
+    """A directional flux whose size distribution is the mean of several epochs' fluxes.
+
+    The direction-speed weights of the 1991 debris model depend on the orbit only, so
+    averaging the cumulative flux over the phase's epochs is exact for the phase total.
+    """
+
+    epochs: tuple  # DirectionalFlux per time sample, sharing directions, speeds and weights
+
+    def __getattr__(self, name):
+        return getattr(self.epochs[0], name)
+
+    def cumulative_flux(self, diameter):
+        return sum(f.cumulative_flux(diameter) for f in self.epochs) / len(self.epochs)
+
+
+@dataclass
+class SourceResult:
+    """Per-face results of one source over one phase."""
+
+    impact_flux: float  # Φ0(≥ impact diameter) [m⁻² yr⁻¹]
+    open_exposure: np.ndarray  # (m,) Σ_j w_j max(0, n·u_j) [unitless]
+    visible_exposure: np.ndarray  # (m,) the same with the visible fraction
+    penetration_flux: np.ndarray  # (m,) [m⁻² yr⁻¹]
+
+
+@dataclass
+class Assessment:
+    """Results of :func:`assess`."""
+
+    case: object
+    mesh: object
+    shields: dict
+    duration: float  # [yr]
+    face: dict  # name -> (m,) array of per-face results
+    by_phase: list  # per phase: {"name", "duration_years", "by_source": {...}}
+    environment: dict  # per phase and source: model parameters
+    timings: dict = field(default_factory=dict)
+
+
+def build_shields(case, mesh):
+    """Check the case's shield definitions against the ballistic library and the mesh tags."""
+    shields = {}
+    for tag, definition in case.shields.items():
+        try:
+            shields[tag] = make_shield(tag, definition)
+        except InputError as error:
+            raise ConfigError(f"{case.where('shields', tag)}: {error}") from None
+    counts = np.bincount(mesh.face_tags, minlength=len(mesh.tag_names))
+    missing = [(name, int(counts[i])) for i, name in enumerate(mesh.tag_names) if name not in shields]
+    if missing:
+        listed = ", ".join(f"{name!r} ({count} faces)" for name, count in missing)
+        raise ConfigError(
+            f"{case.path}: mesh {mesh.source} uses shield tags with no definition: {listed}; "
+            "add a [shields.TAG] table for each"
+        )
+    unused = sorted(set(shields) - set(mesh.tag_names))
+    for tag in unused:
+        logger.warning("shield %r is defined in %s but no face of the mesh uses it", tag, case.where("shields", tag))
+    return shields
+
+
+def build_fluxes(case, phase):
+    """Directional fluxes of every source named by the case, for one phase."""
+    fluxes = {}
+    settings = case.analysis
+    try:
+        if case.debris is not None:
+            samples = max(1, math.ceil(phase.duration / DEBRIS_TIME_STEP))
+            epochs = tuple(
+                environment.debris_flux(
+                    altitude=phase.altitude,
+                    inclination=phase.inclination,
+                    year=phase.start_year + (s + 0.5) * phase.duration / samples,
+                    solar_flux=case.debris.solar_flux,
+                    projectile_density=case.debris.projectile_density,
+                    azimuth_bins=settings.debris_azimuth_bins,
+                )
+                for s in range(samples)
+            )
+            fluxes["debris"] = TimeAveragedFlux(epochs)
+        if case.meteoroid is not None:
+            fluxes["meteoroid"] = environment.meteoroid_flux(
+                altitude=phase.altitude,
+                projectile_density=case.meteoroid.projectile_density,
+                directions=settings.directions,
+            )
+    except InputError as error:
+        raise ConfigError(f"{case.where('phases', case.phases.index(phase))}: {error}") from None
+    return fluxes
+
+
+def integrate_source(engine, mesh, shields, flux, rotation, impact_diameter, threads, progress):
+    """Impact and penetration rates per face for one source in one attitude."""
+    directions = np.ascontiguousarray(np.asarray(flux.directions) @ rotation.T)
+    weights = np.asarray(flux.weights, dtype=np.float64)
+    direction_weights = weights.sum(axis=1)
+    tables = [penetration_table(shields[name], flux) for name in mesh.tag_names]
+    faces_of_tag = [np.flatnonzero(mesh.face_tags == t) for t in range(len(mesh.tag_names))]
+    normals = mesh.face_normals
+    m = mesh.n_faces
+    open_exposure = np.zeros(m)
+    visible_exposure = np.zeros(m)
+    penetration_flux = np.zeros(m)
+    chunk = max(1, CHUNK_ELEMENTS // m)
+    for start in range(0, len(directions), chunk):
+        stop = min(start + chunk, len(directions))
+        block = directions[start:stop]
+        visible = engine.visible_fraction(block, threads=threads)
+        cosines = np.maximum(normals @ block.T, 0.0)
+        open_exposure += cosines @ direction_weights[start:stop]
+        exposed = cosines * visible
+        visible_exposure += exposed @ direction_weights[start:stop]
+        for tag_index, faces in enumerate(faces_of_tag):
+            if len(faces) == 0:
+                continue
+            rows = tables[tag_index][start:stop]
+            values = interpolate_angles(rows, cosines[faces])
+            penetration_flux[faces] += np.einsum("fc,fc->f", exposed[faces], values)
+        if progress is not None:
+            progress(stop - start)
+    return SourceResult(
+        impact_flux=float(flux.cumulative_flux(np.array(impact_diameter))),
+        open_exposure=open_exposure,
+        visible_exposure=visible_exposure,
+        penetration_flux=penetration_flux,
+    )
+
+
+def assess(case, progress=None):
+    """Run the analysis a case file describes.
+
+    Parameters
+    ----------
+    case : pockmark.io.config.Case
+    progress : callable, optional
+        ``progress(done, total)`` in directions, called while ray shadowing.
+
+    Returns
+    -------
+    Assessment
+    """
+    timings = {}
+    clock = time.perf_counter()
+    mesh = load_mesh(case.mesh_path, case.length_unit, case.tags_from)
+    if mesh.area <= 0:
+        raise MeshError(f"{mesh.source}: all faces have zero area; check the mesh and its length unit")
+    shields = build_shields(case, mesh)
+    timings["load_seconds"] = time.perf_counter() - clock
+
+    clock = time.perf_counter()
+    phase_fluxes = [build_fluxes(case, phase) for phase in case.phases]
+    timings["environment_seconds"] = time.perf_counter() - clock
+
+    settings = case.analysis
+    threads = settings.threads or None
+    clock = time.perf_counter()
+    engine = VisibilityEngine(mesh.vertices, mesh.faces, samples_per_face=settings.samples_per_face, seed=settings.seed)
+    total = sum(len(f.directions) for fluxes in phase_fluxes for f in fluxes.values())
+    done = 0
+
+    def advance(count):
+        nonlocal done
+        done += count
+        if progress is not None:
+            progress(done, total)
+
+    m = mesh.n_faces
+    areas = mesh.face_areas
+    face = {}
+    by_phase = []
+    environment_parameters = {}
+    open_impacts = np.zeros(m)
+    for phase, fluxes in zip(case.phases, phase_fluxes):
+        rotation = body_from_orbital(phase.flight_axis, phase.nadir_axis)
+        phase_summary = {"name": phase.name, "duration_years": phase.duration, "by_source": {}}
+        for source, flux in fluxes.items():
+            result = integrate_source(
+                engine, mesh, shields, flux, rotation, settings.impact_diameter, threads, advance
+            )
+            impacts = areas * phase.duration * result.impact_flux * result.visible_exposure
+            penetrations = areas * phase.duration * result.penetration_flux
+            open_impacts += areas * phase.duration * result.impact_flux * result.open_exposure
+            for name, values in ((f"{source}_impacts", impacts), (f"{source}_penetrations", penetrations)):
+                face[name] = face.get(name, np.zeros(m)) + values
+            phase_summary["by_source"][source] = {
+                "expected_impacts": float(impacts.sum()),
+                "expected_penetrations": float(penetrations.sum()),
+            }
+            environment_parameters.setdefault(phase.name, {})[source] = {
+                "model": flux.model,
+                "parameters": flux.parameters,
+                "directions": len(flux.directions),
+                "speed_bins": len(flux.speeds),
+                "mean_speed_km_s": float(flux.mean_speed()),
+                "impact_flux_per_m2_year": result.impact_flux,
+            }
+        by_phase.append(phase_summary)
+    timings["shadowing_and_integration_seconds"] = time.perf_counter() - clock
+
+    sources = [s for s in ("debris", "meteoroid") if f"{s}_impacts" in face]
+    face["expected_impacts"] = sum(face[f"{s}_impacts"] for s in sources)
+    face["expected_penetrations"] = sum(face[f"{s}_penetrations"] for s in sources)
+    safe_area = np.where(areas > 0, areas, np.inf)
+    face["penetrations_per_m2"] = face["expected_penetrations"] / safe_area
+    with np.errstate(invalid="ignore", divide="ignore"):
+        face["shadowed_fraction"] = np.where(
+            open_impacts > 0, 1.0 - face["expected_impacts"] / np.where(open_impacts > 0, open_impacts, 1.0), 0.0
+        )
+    face["shadowed_fraction"] = np.clip(face["shadowed_fraction"], 0.0, 1.0)
+    return Assessment(
+        case=case,
+        mesh=mesh,
+        shields=shields,
+        duration=case.duration,
+        face=face,
+        by_phase=by_phase,
+        environment=environment_parameters,
+        timings=timings,
+    )
