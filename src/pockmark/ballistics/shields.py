@@ -122,7 +122,10 @@ _SPECS = {
             ),
         ),
         material_keys=("bumper_material", "rear_wall_material"),
-        layers=(("bumper_thickness", "bumper_density"), ("rear_wall_thickness", "rear_wall_density")),
+        layers=(
+            ("bumper_thickness", "bumper_density"),
+            ("rear_wall_thickness", "rear_wall_density"),
+        ),
     ),
     "threshold_diameter": _EquationSpec(
         function=threshold_diameter,

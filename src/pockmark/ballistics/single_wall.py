@@ -8,14 +8,13 @@ cour_palais_1987
     plates hit by solid spheres at hypervelocity.
 
 Also defined here: :data:`FAILURE_COEFFICIENTS`, the named multipliers from crater depth to
-failure thickness, and the private helpers that every equation in
-:mod:`pockmark.ballistics` uses to validate and mask the impact conditions.
+failure thickness.
 """
 
 import numpy as np
 
 from pockmark._validation import require_positive
-from pockmark.errors import InputError
+from pockmark.ballistics._common import _finish, _impact_conditions
 
 __all__ = ["FAILURE_COEFFICIENTS", "cour_palais_1987"]
 
@@ -42,60 +41,6 @@ References
 # Modified Cour-Palais crater-depth constant [cm^(-1/18) (HB)^(1/4)] for d in cm,
 # V and C in km/s, densities in g/cm³. From memory (see shared reference note, §2.1).
 _CRATER_CONSTANT = 5.24
-
-
-# --- helpers shared by every equation of the subpackage ---------------------------------------
-
-
-def _first_bad(name, values, bad, valid):
-    """Raise InputError for the first element of ``values`` flagged in ``bad``."""
-    index = int(np.flatnonzero(bad.ravel())[0])
-    where = f" at index {index}" if values.ndim else ""
-    raise InputError(f"{name} must be {valid}; got {values.ravel()[index]:g}{where}")
-
-
-def _impact_conditions(impact_velocity, impact_angle, projectile_density):
-    """Coerce and check the impact conditions common to all ballistic-limit equations.
-
-    NaN passes through (it gives NaN critical diameter); everything else physically
-    impossible raises.
-
-    Returns
-    -------
-    velocity, angle, density : ndarray
-        float64 arrays, not yet broadcast against each other.
-    """
-    velocity = np.asarray(impact_velocity, dtype=np.float64)
-    angle = np.asarray(impact_angle, dtype=np.float64)
-    density = np.asarray(projectile_density, dtype=np.float64)
-    bad = np.isinf(velocity)
-    if np.any(bad):
-        _first_bad(
-            "impact_velocity", velocity, bad,
-            "finite [km s⁻¹] (values ≤ 0 are allowed and mean no impact)",
-        )
-    bad = ~np.isnan(angle) & ~((angle >= 0.0) & (angle <= 180.0))
-    if np.any(bad):
-        _first_bad(
-            "impact_angle", angle, bad,
-            "in [0, 180] [°] measured from the surface normal (≥ 90 means the particle "
-            "cannot hit the face); convert elevation angles with 90 - elevation",
-        )
-    bad = ~np.isnan(density) & ~(np.isfinite(density) & (density > 0.0))
-    if np.any(bad):
-        _first_bad("projectile_density", density, bad, "positive and finite [g cm⁻³]")
-    return velocity, angle, density
-
-
-def _no_impact(velocity, angle):
-    """Mask of conditions under which the particle does not strike the face."""
-    return (velocity <= 0.0) | (angle >= 90.0)
-
-
-def _finish(critical, velocity, angle):
-    """Set d_c = inf where there is no impact and return a float64 ndarray."""
-    out = np.where(_no_impact(velocity, angle), np.inf, critical)
-    return np.asarray(out, dtype=np.float64)
 
 
 # --- model ----------------------------------------------------------------------------------

@@ -9,10 +9,8 @@ threshold_diameter
     pipeline with a shield whose answer is known.
 """
 
-import numpy as np
-
 from pockmark._validation import require_positive
-from pockmark.ballistics.single_wall import _finish, _impact_conditions
+from pockmark.ballistics._common import _finish, _impact_conditions
 
 __all__ = ["threshold_diameter"]
 

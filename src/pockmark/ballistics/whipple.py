@@ -12,7 +12,7 @@ christiansen_1993
 import numpy as np
 
 from pockmark._validation import require_positive
-from pockmark.ballistics.single_wall import _finish, _impact_conditions
+from pockmark.ballistics._common import _finish, _impact_conditions
 from pockmark.constants import KSI_IN_MPA
 
 __all__ = ["christiansen_1993"]

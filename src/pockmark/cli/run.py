@@ -12,7 +12,12 @@ import click
 @click.argument("case_file", type=click.Path(path_type=Path))
 @click.option("--out", "out_dir", required=True, type=click.Path(path_type=Path), help="Run directory to write.")
 @click.option("--overwrite", is_flag=True, help="Replace the files of an earlier run in --out.")
-@click.option("--threads", type=click.IntRange(min=0), default=None, help="Threads for ray shadowing [0 = all cores; default: the case's setting].")
+@click.option(
+    "--threads",
+    type=click.IntRange(min=0),
+    default=None,
+    help="Threads for ray shadowing [0 = all cores; default: the case's setting].",
+)
 @click.option("-v", "--verbose", count=True, help="More log output on stderr (repeatable).")
 @click.option("-q", "--quiet", count=True, help="Less output: no progress bar, warnings only.")
 def run(case_file, out_dir, overwrite, threads, verbose, quiet):
@@ -20,7 +25,7 @@ def run(case_file, out_dir, overwrite, threads, verbose, quiet):
 
     \b
     Examples:
-      pockmark run models/eo_sat/case.toml --out runs/eo_sat
+      pockmark run models/imager_sat/case.toml --out runs/imager_sat
       pockmark run case.toml --out runs/a --overwrite --threads 2 -q
     """
     from pockmark.cli._helpers import ProgressBar, configure_logging
@@ -56,10 +61,9 @@ def run(case_file, out_dir, overwrite, threads, verbose, quiet):
 def _run(case_file, out_dir, overwrite, threads, progress):
     import dataclasses
 
-    import numpy as np
-
     from pockmark.io.config import load_case
-    from pockmark.io.results import prepare_output_dir, write_faces_vtp, write_json, write_table_csv
+    from pockmark.io.results import prepare_output_dir
+    from pockmark.report.files import write_run
     from pockmark.report.summary import build_summary
     from pockmark.risk.assess import assess
 
@@ -69,41 +73,5 @@ def _run(case_file, out_dir, overwrite, threads, progress):
     prepare_output_dir(out_dir, [case.path, case.mesh_path], overwrite=overwrite)
     assessment = assess(case, progress=progress)
     summary = build_summary(assessment)
-    mesh, face = assessment.mesh, assessment.face
-
-    columns = {
-        "face": np.arange(mesh.n_faces),
-        "original_face_id": mesh.original_face_ids,
-        "shield_tag": mesh.tag_of_faces(),
-        "area_m2": mesh.face_areas,
-        "centroid_x_m": mesh.face_centroids[:, 0],
-        "centroid_y_m": mesh.face_centroids[:, 1],
-        "centroid_z_m": mesh.face_centroids[:, 2],
-        "normal_x": mesh.face_normals[:, 0],
-        "normal_y": mesh.face_normals[:, 1],
-        "normal_z": mesh.face_normals[:, 2],
-        "expected_impacts": face["expected_impacts"],
-        "expected_penetrations": face["expected_penetrations"],
-        "penetrations_per_m2": face["penetrations_per_m2"],
-        "shadowed_fraction": face["shadowed_fraction"],
-    }
-    for source in ("debris", "meteoroid"):
-        if f"{source}_penetrations" in face:
-            columns[f"{source}_impacts"] = face[f"{source}_impacts"]
-            columns[f"{source}_penetrations"] = face[f"{source}_penetrations"]
-    write_table_csv(out_dir / "faces.csv", columns)
-
-    cells = {name: values for name, values in columns.items() if name not in ("face", "shield_tag") and not name.startswith(("centroid", "normal"))}
-    cells["shield_tag"] = np.asarray(mesh.tag_of_faces(), dtype=str)
-    cells["shield_tag_id"] = mesh.face_tags.astype(np.int32)
-    import json
-
-    write_faces_vtp(
-        out_dir / "faces.vtp",
-        mesh.vertices,
-        mesh.faces,
-        cells,
-        field_data={"pockmark_summary": json.dumps({k: summary[k] for k in ("title", "pnp", "expected_penetrations", "duration_years")}), "shield_tags": list(mesh.tag_names)},
-    )
-    write_json(out_dir / "summary.json", summary)
+    write_run(assessment, summary, out_dir)
     return summary

@@ -159,6 +159,19 @@ def integrate_source(engine, mesh, shields, flux, rotation, impact_diameter, thr
     )
 
 
+def _usable_threads(requested):
+    """``None`` (all cores) for 0, else ``requested`` capped at the threads numba can run."""
+    if not requested:
+        return None
+    import numba
+
+    available = numba.config.NUMBA_NUM_THREADS
+    if requested > available:
+        logger.warning("%d threads requested but numba can run %d here; using %d", requested, available, available)
+        return available
+    return requested
+
+
 def assess(case, progress=None):
     """Run the analysis a case file describes.
 
@@ -185,7 +198,7 @@ def assess(case, progress=None):
     timings["environment_seconds"] = time.perf_counter() - clock
 
     settings = case.analysis
-    threads = settings.threads or None
+    threads = _usable_threads(settings.threads)
     clock = time.perf_counter()
     engine = VisibilityEngine(mesh.vertices, mesh.faces, samples_per_face=settings.samples_per_face, seed=settings.seed)
     total = sum(len(f.directions) for fluxes in phase_fluxes for f in fluxes.values())

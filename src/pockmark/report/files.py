@@ -1,0 +1,54 @@
+"""The files of a run directory: per-face table, VTK PolyData and the JSON summary."""
+
+import json
+
+import numpy as np
+
+from pockmark.io.results import write_faces_vtp, write_json, write_table_csv
+
+#: Per-face quantities written to both faces.csv and faces.vtp, besides the per-source ones.
+FACE_QUANTITIES = ("expected_impacts", "expected_penetrations", "penetrations_per_m2", "shadowed_fraction")
+
+
+def face_columns(assessment):
+    """Per-face columns ``{name: (m,) array}`` in the order they are written."""
+    mesh, face = assessment.mesh, assessment.face
+    columns = {
+        "face": np.arange(mesh.n_faces),
+        "original_face_id": mesh.original_face_ids,
+        "shield_tag": np.asarray(mesh.tag_of_faces(), dtype=str),
+        "area_m2": mesh.face_areas,
+    }
+    for axis, name in enumerate("xyz"):
+        columns[f"centroid_{name}_m"] = mesh.face_centroids[:, axis]
+    for axis, name in enumerate("xyz"):
+        columns[f"normal_{name}"] = mesh.face_normals[:, axis]
+    columns.update({name: face[name] for name in FACE_QUANTITIES})
+    for source in ("debris", "meteoroid"):
+        for kind in ("impacts", "penetrations"):
+            if f"{source}_{kind}" in face:
+                columns[f"{source}_{kind}"] = face[f"{source}_{kind}"]
+    return columns
+
+
+def write_run(assessment, summary, out_dir):
+    """Write ``faces.csv``, ``faces.vtp`` and ``summary.json`` (last, so it marks completion)."""
+    mesh = assessment.mesh
+    columns = face_columns(assessment)
+    write_table_csv(out_dir / "faces.csv", columns)
+    skip = ("face",)
+    cells = {
+        name: values
+        for name, values in columns.items()
+        if name not in skip and not name.startswith(("centroid_", "normal_"))
+    }
+    cells["shield_tag_id"] = mesh.face_tags.astype(np.int32)
+    headline = {key: summary[key] for key in ("title", "pnp", "expected_penetrations", "duration_years")}
+    write_faces_vtp(
+        out_dir / "faces.vtp",
+        mesh.vertices,
+        mesh.faces,
+        cells,
+        field_data={"pockmark_summary": json.dumps(headline), "shield_tags": list(mesh.tag_names)},
+    )
+    write_json(out_dir / "summary.json", summary)
