@@ -90,8 +90,10 @@ def test_broken_files_give_one_line_errors(tmp_path, content, error, words):
 
 
 def test_directory_and_missing_file(tmp_path):
+    folder = tmp_path / "dir.obj"
+    folder.mkdir()
     with pytest.raises(FormatError, match="is a directory"):
-        load_mesh(tmp_path / "dir.obj" if (tmp_path / "dir.obj").mkdir() is None else None)
+        load_mesh(folder)
     with pytest.raises(FormatError, match="no such file"):
         load_mesh(tmp_path / "missing.obj")
     with pytest.raises(FormatError, match="no reader for .stl"):
@@ -109,3 +111,29 @@ def test_fuzzed_bytes_never_crash(tmp_path_factory, data):
     except PockmarkError:
         return
     assert np.all(np.isfinite(mesh.vertices))
+
+
+_NUMBER = st.one_of(
+    st.floats(allow_nan=True, allow_infinity=True, width=32).map(repr), st.text("0123456789-.e", max_size=6)
+)
+_RECORD = st.one_of(
+    st.tuples(st.just("v"), st.lists(_NUMBER, max_size=4)).map(lambda r: "v " + " ".join(r[1])),
+    st.lists(st.integers(-6, 8).map(str), max_size=5).map(lambda r: "f " + " ".join(r)),
+    st.text(max_size=8).map(lambda name: "g " + name),
+    st.text(max_size=12),
+)
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.lists(_RECORD, max_size=12))
+def test_fuzzed_records_never_crash(tmp_path_factory, records):
+    """Near-valid OBJ text: loads with finite, in-range data or raises a PockmarkError."""
+    path = tmp_path_factory.mktemp("fuzz") / "fuzz.obj"
+    path.write_bytes("\n".join(records).encode("utf-8", errors="replace"))
+    try:
+        mesh = load_obj(path)
+    except PockmarkError:
+        return
+    assert np.all(np.isfinite(mesh.vertices))
+    assert mesh.faces.min() >= 0 and mesh.faces.max() < len(mesh.vertices)
+    assert len(mesh.face_tags) == len(mesh.faces) == len(mesh.original_face_ids)
