@@ -1,1 +1,47 @@
-"""environment"""
+"""Impact environment: orbital-debris and meteoroid fluxes as directional distributions.
+
+Models (registry ``MODELS``, keys identical to the function names):
+
+* ``kessler_1991`` — 1991 NASA analytic orbital-debris model: cumulative flux of debris of
+  diameter >= d on a randomly tumbling surface [m⁻² yr⁻¹]; diameters 0.001–100 cm, circular
+  orbits up to 2000 km (stated range below 1000 km), inclination factor tabulated for
+  28.5°–120° (clamped outside), dates from 1988 on.
+* ``grun_1985`` — Grün et al. (1985) interplanetary meteoroid flux at 1 AU: cumulative flux of
+  meteoroids of mass >= m on a randomly oriented one-sided plate [m⁻² yr⁻¹]; masses
+  10⁻¹⁸–10² g.
+
+Directional builders (:mod:`pockmark.environment.flux`) turn them into a
+:class:`DirectionalFlux` over arrival directions and speeds in the local orbital frame
+(:math:`\\hat x` flight direction, :math:`\\hat z` zenith, :math:`\\hat y = \\hat z \\times
+\\hat x`; directions point toward where the particles come from):
+
+* :func:`debris_flux` — magnitude from ``kessler_1991``; horizontal directions and speeds from
+  circular-orbit crossing geometry with an assumed debris inclination population
+  (:mod:`pockmark.environment.debris_directions`);
+* :func:`meteoroid_flux` — magnitude from ``grun_1985`` with the simplified NASA gravitational
+  focusing factor, isotropic directions on a Fibonacci grid with the Earth's disc removed, and
+  the NASA analytic speed distribution (:mod:`pockmark.environment.meteoroid_speed`).
+
+Earth-orbit helpers are in :mod:`pockmark.environment.orbit` and direction grids in
+:mod:`pockmark.environment.directions`.
+"""
+
+from pockmark.environment.directions import fibonacci_directions
+from pockmark.environment.flux import DirectionalFlux, debris_flux, meteoroid_flux
+from pockmark.environment.grun_1985 import grun_1985
+from pockmark.environment.kessler_1991 import kessler_1991
+from pockmark.environment.orbit import circular_speed
+
+#: Cumulative flux models by name; the key is the function name (and the CLI choice string).
+MODELS = {"kessler_1991": kessler_1991, "grun_1985": grun_1985}
+
+__all__ = [
+    "MODELS",
+    "DirectionalFlux",
+    "circular_speed",
+    "debris_flux",
+    "fibonacci_directions",
+    "grun_1985",
+    "kessler_1991",
+    "meteoroid_flux",
+]

@@ -18,7 +18,11 @@ only through its shield and the impact angle, so it is tabulated once per shield
 direction on a fine grid of angles (:data:`ANGLE_STEP`) and interpolated linearly.
 """
 
+import warnings
+
 import numpy as np
+
+from pockmark.errors import ModelRangeWarning
 
 #: Spacing of the impact-angle grid on which penetration fluxes are tabulated [°].
 ANGLE_STEP = 0.25
@@ -44,7 +48,12 @@ def penetration_table(shield, flux):
     angles = ANGLE_NODES[:, None]
     critical = np.asarray(shield.critical_diameter(speeds, angles, flux.projectile_density), dtype=np.float64)
     critical = np.broadcast_to(critical, (len(ANGLE_NODES), speeds.shape[1]))
-    penetrating = np.asarray(flux.cumulative_flux(critical), dtype=np.float64)
+    # The table spans every speed bin at every angle up to grazing, so it always reaches
+    # critical diameters far beyond a flux model's size range (slow or grazing impacts) where
+    # the flux is negligible; the models' range warnings would only be noise here.
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ModelRangeWarning)
+        penetrating = np.asarray(flux.cumulative_flux(critical), dtype=np.float64)
     return np.asarray(flux.weights, dtype=np.float64) @ penetrating.T
 
 

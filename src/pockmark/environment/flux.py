@@ -1,0 +1,418 @@
+"""Directional particle flux in the local orbital frame: the container and its builders.
+
+Scope: turns the cumulative flux models (:func:`~pockmark.environment.kessler_1991.kessler_1991`
+for orbital debris, :func:`~pockmark.environment.grun_1985.grun_1985` for meteoroids) into a
+discrete distribution over arrival directions and impact speeds for a spacecraft in a circular
+orbit, in the form the risk integration consumes.
+
+Frame (fixed): the local orbital frame has :math:`\\hat x` along the flight direction
+(the spacecraft velocity, horizontal for a circular orbit), :math:`\\hat z` along the local
+zenith (radially away from the Earth) and :math:`\\hat y = \\hat z \\times \\hat x` (to the
+left of the flight direction). Directions are unit vectors pointing **from** the vehicle
+**toward** where the particles come from.
+
+Normalisation: a flat face of unit normal :math:`n` and area :math:`A`, fully unshadowed,
+receives over :math:`T` years
+
+.. math:: N = \\sum_j \\sum_k w_{jk}\\,\\max(0, n\\cdot u_j)\\,\\Phi_0(\\ge d_c)\\,A\\,T
+
+impacts by particles larger than :math:`d_c`, with :math:`\\Phi_0` the omnidirectional flux
+per unit cross-sectional area (:meth:`DirectionalFlux.cumulative_flux`). For an isotropic
+source the orientation average of :math:`\\max(0, n\\cdot u)` is 1/4, so a randomly oriented
+one-sided plate receives :math:`\\Phi_0/4` times the total weight, the flux the models give.
+"""
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from pockmark._validation import require_positive
+from pockmark.constants import tol
+from pockmark.environment import kessler_1991 as _kessler
+from pockmark.environment.debris_directions import _population, debris_direction_distribution
+from pockmark.environment.directions import fibonacci_directions
+from pockmark.environment.grun_1985 import grun_1985
+from pockmark.environment.meteoroid_speed import RAW_NORMALISATION_NASA, speed_bins_nasa
+from pockmark.environment.orbit import (
+    circular_speed,
+    earth_shielding_factor,
+    earth_shielding_half_angle,
+    focusing_factor_nasa,
+)
+from pockmark.errors import InputError
+
+_SOURCES = ("debris", "meteoroid")
+
+
+def _positive_diameter(diameter):
+    d = np.asarray(diameter, dtype=np.float64)
+    if np.any(d <= 0.0):
+        bad = d.ravel()[int(np.flatnonzero((d <= 0.0).ravel())[0])]
+        raise InputError(
+            f"diameter must be positive [cm]; got {bad:g}. Use numpy.inf for 'no particle is "
+            f"large enough' (flux 0)"
+        )
+    return d
+
+
+def _debris_omnidirectional(flux, diameter):
+    """Φ0 = 4 F_kessler_1991(d) [m⁻² yr⁻¹] for the stored orbit and epoch."""
+    d, issues = _kessler._check_diameter(diameter)
+    _kessler._warn("kessler_1991", issues, stacklevel=4)
+    p = flux.parameters
+    return 4.0 * _kessler._flux(
+        d,
+        p["altitude"],
+        _kessler._inclination_factor(p["inclination"]),
+        p["year"],
+        p["solar_flux"],
+    )
+
+
+def _meteoroid_omnidirectional(flux, diameter):
+    """Φ0 = 4 G F_grun_1985(π/6 ρ d³) [m⁻² yr⁻¹] for the stored focusing factor and density."""
+    d = _positive_diameter(diameter)
+    mass = np.pi / 6.0 * flux.projectile_density * d**3
+    return 4.0 * flux.parameters["focusing_factor"] * np.asarray(grun_1985(mass))
+
+
+_OMNIDIRECTIONAL = {
+    "kessler_1991": _debris_omnidirectional,
+    "grun_1985": _meteoroid_omnidirectional,
+}
+
+
+@dataclass(frozen=True, eq=False)
+class DirectionalFlux:
+    """Discrete distribution of a particle flux over arrival directions and impact speeds.
+
+    Attributes
+    ----------
+    source : str
+        ``"debris"`` or ``"meteoroid"``.
+    model : str
+        Registry key of the cumulative flux model: ``"kessler_1991"`` or ``"grun_1985"``.
+    directions : (nd, 3) float
+        Unit vectors in the local orbital frame pointing from the vehicle toward where the
+        particles come from.
+    speeds : (nv,) float
+        Impact speeds relative to the vehicle [km s⁻¹].
+    weights : (nd, nv) float
+        Fraction of the omnidirectional flux arriving from direction ``j`` at speed ``k``
+        [unitless]; non-negative, summing to at most 1. Directions blocked by the Earth are
+        omitted.
+    projectile_density : float
+        Density of the particles [g cm⁻³].
+    parameters : dict
+        Every input and convention used to build the flux, JSON-serialisable, for the run
+        manifest. :meth:`cumulative_flux` reads the model inputs from it.
+
+    Notes
+    -----
+    A face of unit normal :math:`n` and area :math:`A` [m²], fully unshadowed, receives
+    :math:`\\sum_{jk} w_{jk} \\max(0, n \\cdot u_j)\\,\\Phi_0(\\ge d_c)\\,A\\,T` impacts larger
+    than :math:`d_c` in :math:`T` years. The arrays are stored read-only. Instances compare by
+    identity and pickle by value.
+    """
+
+    source: str
+    model: str
+    directions: np.ndarray
+    speeds: np.ndarray
+    weights: np.ndarray
+    projectile_density: float
+    parameters: dict
+
+    def __post_init__(self):
+        if self.source not in _SOURCES:
+            raise InputError(f"source must be one of {_SOURCES}; got {self.source!r}")
+        if self.model not in _OMNIDIRECTIONAL:
+            raise InputError(
+                f"unknown flux model {self.model!r}; choose one of: "
+                f"{', '.join(sorted(_OMNIDIRECTIONAL))}"
+            )
+        directions = np.array(self.directions, dtype=np.float64)
+        speeds = np.array(self.speeds, dtype=np.float64)
+        weights = np.array(self.weights, dtype=np.float64)
+        if directions.ndim != 2 or directions.shape[1] != 3:
+            raise InputError(f"directions must have shape (nd, 3); got {directions.shape}")
+        if speeds.ndim != 1:
+            raise InputError(f"speeds must have shape (nv,); got {speeds.shape}")
+        if weights.shape != (directions.shape[0], speeds.shape[0]):
+            raise InputError(
+                f"weights must have shape (nd, nv) = ({directions.shape[0]}, {speeds.shape[0]}); "
+                f"got {weights.shape}"
+            )
+        norm = np.linalg.norm(directions, axis=1)
+        if not np.all(np.abs(norm - 1.0) <= tol.unit_norm):
+            raise InputError(
+                f"directions must be unit vectors (|norm − 1| <= {tol.unit_norm:g}); got a norm "
+                f"of {norm[np.argmax(np.abs(norm - 1.0))]:.9g}"
+            )
+        if not np.all(np.isfinite(speeds) & (speeds >= 0.0)):
+            raise InputError(f"speeds must be finite and >= 0 [km s⁻¹]; got min {speeds.min():g}")
+        if not np.all(np.isfinite(weights) & (weights >= 0.0)) or weights.sum() > 1.0 + 1e-9:
+            raise InputError(
+                f"weights must be finite, >= 0 and sum to at most 1; got min {weights.min():g}, "
+                f"sum {weights.sum():.12g}"
+            )
+        density = float(require_positive("projectile_density", self.projectile_density, "g cm⁻³"))
+        for name, array in (("directions", directions), ("speeds", speeds), ("weights", weights)):
+            array.setflags(write=False)
+            object.__setattr__(self, name, array)
+        object.__setattr__(self, "projectile_density", density)
+        object.__setattr__(self, "parameters", dict(self.parameters))
+
+    def cumulative_flux(self, diameter):
+        """Omnidirectional flux of particles at least as large as the given diameter.
+
+        Parameters
+        ----------
+        diameter : numeric
+            Particle diameter [cm], > 0; ``numpy.inf`` gives 0 and NaN propagates.
+
+        Returns
+        -------
+        numeric
+            Flux :math:`\\Phi_0(\\ge d)` per unit cross-sectional area normal to the particles'
+            direction of travel [m⁻² yr⁻¹]; 4 × the flux on a randomly tumbling one-sided
+            plate. Debris: :math:`4 F_{kessler\\_1991}(d)`. Meteoroids:
+            :math:`4 G F_{grun\\_1985}(\\pi\\rho d^3/6)` with the focusing factor :math:`G` in
+            ``parameters`` and no Earth shielding (that is in the weights).
+
+        Raises
+        ------
+        InputError
+            If a diameter is zero or negative.
+        """
+        flux = _OMNIDIRECTIONAL[self.model](self, diameter)
+        return flux if np.ndim(flux) else float(flux)
+
+    def mean_speed(self):
+        """Flux-weighted mean impact speed [km s⁻¹]."""
+        total = self.weights.sum()
+        return float(self.weights.sum(axis=0) @ self.speeds / total) if total > 0 else 0.0
+
+
+def _scalar(name, value, unit):
+    if np.ndim(value):
+        raise InputError(f"{name} must be a scalar [{unit}]; got shape {np.shape(value)}")
+    return float(value)
+
+
+def _density(value):
+    return float(
+        require_positive(
+            "projectile_density", _scalar("projectile_density", value, "g cm⁻³"), "g cm⁻³"
+        )
+    )
+
+
+def debris_flux(
+    altitude,
+    inclination,
+    year,
+    solar_flux,
+    projectile_density=2.8,
+    azimuth_bins=90,
+    population=None,
+):
+    """Directional orbital-debris flux for a circular orbit, 1991 NASA model.
+
+    Parameters
+    ----------
+    altitude : float
+        Circular-orbit altitude [km], in (0, 2000] (stated model range up to 1000 km).
+    inclination : float
+        Orbit inclination [°], in [0, 180].
+    year : float
+        Date as a decimal year [yr].
+    solar_flux : float
+        13-month smoothed F10.7 solar radio flux of the year **before** ``year``
+        [10⁴ Jy].
+    projectile_density : float
+        Debris density [g cm⁻³], > 0. Default 2.8 (aluminium); one value for all sizes.
+    azimuth_bins : int
+        Number of equal azimuth bins over [−90°, 90°]; even.
+    population : sequence of tuple, optional
+        Debris inclination families for the direction and speed distribution; see
+        :func:`~pockmark.environment.debris_directions.debris_direction_distribution`.
+        Default ``DEFAULT_DEBRIS_POPULATION`` (an assumption, see its documentation).
+
+    Returns
+    -------
+    DirectionalFlux
+        ``source="debris"``, ``model="kessler_1991"``. ``directions`` are horizontal,
+        one per azimuth bin, all in the forward hemisphere (positive :math:`x`); ``speeds``
+        are the bins' mean speeds (``nv = nd``) and ``weights`` is diagonal, summing to 1.
+
+    Raises
+    ------
+    InputError
+        As :func:`~pockmark.environment.kessler_1991.kessler_1991` and
+        :func:`~pockmark.environment.debris_directions.debris_direction_distribution`, and for
+        a non-positive density or non-scalar inputs.
+
+    Warns
+    -----
+    ModelRangeWarning
+        Once, for an altitude above 1000 km, an inclination outside 28.5°–120° or a year
+        before 1988 (see :func:`~pockmark.environment.kessler_1991.kessler_1991`).
+
+    Notes
+    -----
+    The magnitude is :math:`\\Phi_0 = 4F` with :math:`F` from
+    :func:`~pockmark.environment.kessler_1991.kessler_1991` (:math:`k = 1`); the directions and
+    speeds come from circular-orbit crossing geometry and an assumed inclination population,
+    not from the 1991 model's own speed distribution. All debris arrives horizontally from
+    within ±90° of the flight direction, so the wake-, zenith- and nadir-facing faces receive
+    none, and a ram-facing flat plate receives :math:`k_{ram} = 2\\langle V\\rangle / v_c`
+    times the randomly-tumbling flux. No Earth shielding and no gravitational focusing are
+    applied: the 1991 model already contains its geometry.
+
+    See Also
+    --------
+    meteoroid_flux
+    """
+    h = _scalar("altitude", altitude, "km")
+    i = _scalar("inclination", inclination, "°")
+    t = _scalar("year", year, "yr")
+    s = _scalar("solar_flux", solar_flux, "10⁴ Jy")
+    density = _density(projectile_density)
+    _, _, orbit_issues = _kessler._check_orbit(h, i)
+    _, _, epoch_issues = _kessler._check_epoch(t, s)
+    _kessler._warn("kessler_1991", orbit_issues + epoch_issues)
+
+    azimuths, speeds, weights = debris_direction_distribution(h, i, azimuth_bins, population)
+    alpha = np.radians(azimuths)
+    directions = np.column_stack((np.cos(alpha), np.sin(alpha), np.zeros_like(alpha)))
+    families = np.column_stack(_population(population))
+    parameters = {
+        "altitude": h,
+        "inclination": i,
+        "year": t,
+        "solar_flux": s,
+        "solar_flux_convention": "13-month smoothed F10.7 of the year before `year`",
+        "circular_speed": circular_speed(h),
+        "azimuth_bins": int(azimuth_bins),
+        "direction_model": "circular-orbit crossing geometry, uniform node (Kessler 1981)",
+        "population": "default" if population is None else "user",
+        "population_families": families.tolist(),
+        "population_columns": ["inclination_deg", "normalised_weight", "half_width_deg"],
+        "earth_shielding": False,
+        "focusing": "none",
+        "frame": "local orbital: x flight direction, z zenith, y = z x x; directions toward source",
+    }
+    return DirectionalFlux(
+        source="debris",
+        model="kessler_1991",
+        directions=directions,
+        speeds=speeds,
+        weights=np.diag(weights),
+        projectile_density=density,
+        parameters=parameters,
+    )
+
+
+def meteoroid_flux(
+    altitude,
+    projectile_density=1.0,
+    directions=600,
+    speed_bin_width=1.0,
+    earth_shielding=True,
+):
+    """Directional meteoroid flux for a circular Earth orbit, Grün et al. (1985) model.
+
+    Parameters
+    ----------
+    altitude : float
+        Orbit altitude [km]; must exceed the 100 km atmosphere allowance.
+    projectile_density : float
+        Meteoroid density [g cm⁻³], > 0, used to turn diameters into masses. Default 1.0.
+    directions : int
+        Number of directions of the Fibonacci grid over the full sphere, before the Earth's
+        disc is removed. Default 600.
+    speed_bin_width : float
+        Width of the speed bins [km s⁻¹]. Default 1.0.
+    earth_shielding : bool
+        Remove the directions blocked by the Earth and its atmosphere (default ``True``).
+        ``False`` keeps the whole sphere; for tests and for comparison only.
+
+    Returns
+    -------
+    DirectionalFlux
+        ``source="meteoroid"``, ``model="grun_1985"``. ``weights[j, k]`` is
+        :math:`p_k / n` for each kept direction, with :math:`p_k` the speed-bin probability and
+        :math:`n` the grid size, so the weights sum to the shielding factor (to within
+        :math:`1/n`).
+
+    Raises
+    ------
+    InputError
+        For an altitude not above 100 km, a non-positive density, a grid size that is not a
+        positive integer, or a non-positive speed-bin width.
+
+    Notes
+    -----
+    One consistent convention, that of the ISS design documents (NASA SSP 30425 Rev. B and
+    TM-4527, 1994), recorded in ``parameters``:
+
+    * magnitude :math:`\\Phi_0(\\ge d) = 4\\,G\\,F_{grun\\_1985}(\\pi\\rho d^3/6)`, with the
+      simplified focusing factor :math:`G = 1 + (R_E + 100\\ \\mathrm{km})/(R_E + h)`
+      (:func:`~pockmark.environment.orbit.focusing_factor_nasa`);
+    * Earth shielding by removing every grid direction inside the cone of half-angle
+      :math:`\\eta` about nadir (:math:`-\\hat z`),
+      :math:`\\sin\\eta = (R_E + 100\\ \\mathrm{km})/(R_E + h)`; the orientation average then
+      reproduces :math:`s_f = (1 + \\cos\\eta)/2`, a zenith-facing plate keeps its whole flux
+      and a nadir-facing plate :math:`\\cos^2\\eta` of it;
+    * speeds from :func:`~pockmark.environment.meteoroid_speed.speed_bins_nasa` (renormalised
+      from its recalled integral 1.0037), independent of direction;
+    * arrival directions otherwise isotropic **in the vehicle frame**. This version has no
+      asymmetry from the spacecraft's own motion (more flux on ram faces than on wake faces);
+      a later version will compose Earth-frame isotropy with the vehicle velocity (the ECSS
+      :math:`K` factor, about 1.08 on average).
+
+    The Fibonacci grid has its axis along :math:`\\hat z`, so the Earth's cone is cut along
+    equal-area band boundaries and the shielded fraction is exact to within :math:`1/n`.
+
+    See Also
+    --------
+    debris_flux
+    """
+    h = _scalar("altitude", altitude, "km")
+    eta = earth_shielding_half_angle(h)  # validates h > 100 km
+    density = _density(projectile_density)
+    units = fibonacci_directions(directions)
+    count = units.shape[0]
+    if earth_shielding:
+        units = units[units[:, 2] > -np.cos(np.radians(eta))]
+    speeds, probabilities = speed_bins_nasa(speed_bin_width)
+    weights = np.outer(np.full(units.shape[0], 1.0 / count), probabilities)
+    parameters = {
+        "altitude": h,
+        "focusing": "nasa",
+        "focusing_factor": focusing_factor_nasa(h),
+        "earth_shielding": bool(earth_shielding),
+        "earth_shielding_half_angle": eta,
+        "earth_shielding_factor": earth_shielding_factor(h) if earth_shielding else 1.0,
+        "directions": count,
+        "directions_kept": int(units.shape[0]),
+        "direction_grid": "fibonacci, axis along zenith",
+        "speed_distribution": "nasa analytic n(v), 11.1-72.2 km/s",
+        "speed_distribution_raw_integral": RAW_NORMALISATION_NASA,
+        "speed_bin_width": float(speed_bin_width),
+        "directionality": "isotropic in the vehicle frame, no spacecraft-motion asymmetry",
+        "frame": "local orbital: x flight direction, z zenith, y = z x x; directions toward source",
+    }
+    return DirectionalFlux(
+        source="meteoroid",
+        model="grun_1985",
+        directions=units,
+        speeds=speeds,
+        weights=weights,
+        projectile_density=density,
+        parameters=parameters,
+    )
+
+
+__all__ = ["DirectionalFlux", "debris_flux", "meteoroid_flux"]
