@@ -11,6 +11,14 @@ because numba's on-disk cache keys entries by function and signature, not by the
 ``parallel`` flag, and the two compiled variants would overwrite each other's cache entries.
 
 No kernel uses ``fastmath``: the slab test relies on IEEE comparisons with huge values.
+
+References
+----------
+.. [1] T. Möller and B. Trumbore, "Fast, minimum storage ray-triangle intersection,"
+   J. Graphics Tools, vol. 2, no. 1, pp. 21-28, 1997, :doi:`10.1080/10867651.1997.10487468`.
+.. [2] I. Wald, S. Boulos and P. Shirley, "Ray tracing deformable scenes using dynamic bounding
+   volume hierarchies," ACM Trans. Graphics, vol. 26, no. 1, 2007,
+   :doi:`10.1145/1189762.1206075` (binned surface-area-heuristic construction).
 """
 
 import numba
