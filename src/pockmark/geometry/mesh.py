@@ -1,6 +1,6 @@
 """The vehicle mesh: triangles with one shield tag per face, in the file's face order."""
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
@@ -26,6 +26,12 @@ class Mesh:
         Index of each face in the file it came from (polygons split into triangles share one).
     source : str
         Where the mesh came from, for messages.
+    face_origins : (m,) int, optional
+        Which input file each face came from: 0 for the vehicle mesh, k for the k-th added
+        panel file. Defaults to zeros.
+    face_sides : (m,) int, optional
+        0 for a face as read, 1 for the back side of a thin (two-sided) sheet, added as a copy
+        with reversed winding. Defaults to zeros.
     """
 
     vertices: np.ndarray
@@ -34,9 +40,13 @@ class Mesh:
     tag_names: tuple
     original_face_ids: np.ndarray
     source: str = "<memory>"
-    face_attributes: dict = field(default_factory=dict)
+    face_origins: np.ndarray = None
+    face_sides: np.ndarray = None
 
     def __post_init__(self):
+        for name in ("face_origins", "face_sides"):
+            if getattr(self, name) is None:
+                object.__setattr__(self, name, np.zeros(len(self.faces), dtype=np.int64))
         n_vertices = len(self.vertices)
         if self.faces.ndim != 2 or self.faces.shape[1] != 3 or len(self.faces) == 0:
             raise MeshError(f"{self.source}: the mesh has no triangles; check the file and its format")
