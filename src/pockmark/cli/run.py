@@ -70,7 +70,7 @@ def _run(case_file, out_dir, overwrite, threads, progress):
     case = load_case(case_file)
     if threads is not None:
         case = dataclasses.replace(case, analysis=dataclasses.replace(case.analysis, threads=threads))
-    prepare_output_dir(out_dir, [case.path, case.mesh_path], overwrite=overwrite)
+    prepare_output_dir(out_dir, case.input_files, overwrite=overwrite)
     assessment = assess(case, progress=progress)
     summary = build_summary(assessment)
     write_run(assessment, summary, out_dir)

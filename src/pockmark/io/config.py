@@ -19,7 +19,7 @@ from pockmark.errors import ConfigError
 from pockmark.geometry.frames import ATTITUDE_AXES
 from pockmark.geometry.units import LENGTH_UNITS
 
-_SECTIONS = {"title", "vehicle", "shields", "phases", "environment", "analysis"}
+_SECTIONS = {"title", "vehicle", "shields", "phases", "environment", "analysis", "components", "thin", "panels", "retag"}
 
 
 @dataclass(frozen=True)
@@ -65,6 +65,46 @@ class AnalysisSettings:
     impact_diameter: float  # impacts are counted for particles at least this large [cm]
 
 
+#: Roles a component can play: a penetration of a critical component counts as a failure of
+#: the vehicle; a shadow-only component blocks particles, and its own penetrations are
+#: reported separately.
+COMPONENT_ROLES = ("critical", "shadow_only")
+
+
+@dataclass(frozen=True)
+class Component:
+    """A named group of shield tags reported together."""
+
+    name: str
+    tags: tuple
+    role: str = "critical"
+    closed: bool = True  # the health check expects its parts to be closed surfaces
+
+
+@dataclass(frozen=True)
+class Panel:
+    """An extra mesh added to the vehicle (e.g. an enhancement panel); it also shadows."""
+
+    path: Path
+    length_unit: str
+    tags_from: str
+    tag: str | None  # when set, every face of the file gets this tag
+
+
+@dataclass(frozen=True)
+class Retag:
+    """Give ``tag`` to the faces that meet every criterion that is set."""
+
+    index: int  # position in the case's [[retag]] list, for messages
+    tag: str
+    tags: tuple | None = None
+    components: tuple | None = None
+    box: tuple | None = None  # ((xmin, ymin, zmin), (xmax, ymax, zmax)) [m]
+    faces: tuple | None = None
+    highest_risk_run: Path | None = None
+    highest_risk_count: int | None = None
+
+
 @dataclass(frozen=True)
 class Case:
     """A validated case file."""
@@ -72,14 +112,49 @@ class Case:
     path: Path
     text: str
     title: str
-    mesh_path: Path
+    mesh_paths: tuple  # one file, or one file per tag or component
     length_unit: str
     tags_from: str
+    tags_file: Path | None
     shields: dict  # tag -> raw definition table
     phases: tuple
     debris: DebrisSettings | None
     meteoroid: MeteoroidSettings | None
     analysis: AnalysisSettings
+    components: tuple = ()
+    thin: dict = None  # front tag -> back tag of open sheets exposed on both sides
+    panels: tuple = ()
+    retags: tuple = ()
+
+    @property
+    def input_files(self):
+        """Every file the case reads, for the manifest and so that no output replaces one."""
+        files = [self.path, *self.mesh_paths, *(p.path for p in self.panels)]
+        if self.tags_file is not None:
+            files.append(self.tags_file)
+        files += [r.highest_risk_run / "faces.csv" for r in self.retags if r.highest_risk_run]
+        return files
+
+    def component_of_tags(self, tag_names):
+        """``(components, index)``: every component, and the component index of each tag.
+
+        Tags that no ``[components.*]`` table lists form a critical component of their own,
+        named after the tag; the back tag of a thin sheet joins its front tag's component.
+        """
+        components = list(self.components)
+        index = {}
+        for number, component in enumerate(components):
+            for tag in component.tags:
+                index[tag] = number
+        thin = self.thin or {}
+        for front, back in thin.items():
+            if back not in index and front in index:
+                index[back] = index[front]
+        for tag in tag_names:
+            if tag not in index:
+                index[tag] = len(components)
+                components.append(Component(name=tag, tags=(tag,), closed=tag not in thin))
+        return tuple(components), [index[tag] for tag in tag_names]
 
     @property
     def sha256(self):
@@ -208,6 +283,126 @@ def _table(reader, key, required=True):
     return value
 
 
+def _existing_file(reader, key, name):
+    resolved = (reader.case_path.parent / name).resolve()
+    if not resolved.is_file():
+        reader.fail(key, f"file {resolved} does not exist or is not a file; fix the path (relative to the case file)")
+    return resolved
+
+
+def _string_list(reader, key):
+    values = reader.get(key, list, default=None)
+    if values is not None and (not values or not all(isinstance(v, str) and v for v in values)):
+        reader.fail(key, "must be a non-empty list of names, e.g. [\"bus_wall\"]")
+    return None if values is None else tuple(values)
+
+
+def _load_components(top, path, text):
+    table = _table(top, "components", required=False) or {}
+    components = []
+    seen = {}
+    for name, body in table.items():
+        if not isinstance(body, dict):
+            top.fail("components", f"components.{name} must be a table ([components.{name}])")
+        reader = _Reader(path, text, body, ("components", name))
+        tags = _string_list(reader, "tags")
+        if tags is None:
+            reader.fail("tags", 'missing; list the shield tags of this component, e.g. tags = ["tank"]')
+        for tag in tags:
+            if tag in seen:
+                reader.fail("tags", f"tag {tag!r} is already in component {seen[tag]!r}; a tag belongs to one component")
+            seen[tag] = name
+        components.append(
+            Component(
+                name=name,
+                tags=tags,
+                role=reader.get("role", str, default="critical", check=_choice(COMPONENT_ROLES)),
+                closed=reader.get("closed", bool, default=True),
+            )
+        )
+        reader.finish()
+    return tuple(components)
+
+
+def _load_thin(top, path, text):
+    table = _table(top, "thin", required=False) or {}
+    thin = {}
+    for tag, body in table.items():
+        if not isinstance(body, dict):
+            top.fail("thin", f"thin.{tag} must be a table ([thin.{tag}])")
+        reader = _Reader(path, text, body, ("thin", tag))
+        thin[tag] = reader.get("back_tag", str, default=tag)
+        reader.finish()
+    return thin
+
+
+def _load_panels(top, path, text, default_unit):
+    top.used.add("panels")
+    entries = top.table.get("panels", [])
+    if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
+        top.fail("panels", "must be a list of [[panels]] tables")
+    panels = []
+    for index, body in enumerate(entries):
+        reader = _Reader(path, text, body, ("panels", index))
+        panels.append(
+            Panel(
+                path=_existing_file(reader, "mesh", reader.get("mesh", str)),
+                length_unit=reader.get("length_unit", str, default=default_unit, check=_choice(tuple(LENGTH_UNITS))),
+                tags_from=reader.get("tags_from", str, default="group"),
+                tag=reader.get("tag", str, default=None),
+            )
+        )
+        reader.finish()
+    return tuple(panels)
+
+
+def _load_retags(top, path, text):
+    top.used.add("retag")
+    entries = top.table.get("retag", [])
+    if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
+        top.fail("retag", "must be a list of [[retag]] tables")
+    retags = []
+    for index, body in enumerate(entries):
+        reader = _Reader(path, text, body, ("retag", index))
+        box = reader.get("box", list, default=None)
+        if box is not None:
+            try:
+                low, high = (tuple(float(v) for v in corner) for corner in box)
+                valid = len(low) == len(high) == 3 and all(a <= b for a, b in zip(low, high))
+            except (TypeError, ValueError):
+                valid = False
+            if not valid:
+                reader.fail("box", "must be [[xmin, ymin, zmin], [xmax, ymax, zmax]] in metres with min <= max")
+            box = (low, high)
+        faces = reader.get("faces", list, default=None)
+        if faces is not None and (not faces or not all(isinstance(f, int) and not isinstance(f, bool) and f >= 0 for f in faces)):
+            reader.fail("faces", "must be a non-empty list of face indices (the `face` column of faces.csv)")
+        run_dir = count = None
+        risk = reader.get("highest_risk", dict, default=None)
+        if risk is not None:
+            risk_reader = _Reader(path, text, risk, ("retag", index, "highest_risk"))
+            run_dir = (path.parent / risk_reader.get("run", str)).resolve()
+            if not (run_dir / "faces.csv").is_file() or not (run_dir / "summary.json").is_file():
+                risk_reader.fail("run", f"{run_dir} holds no faces.csv and summary.json of an earlier run")
+            count = risk_reader.get("count", int, check=_positive)
+            risk_reader.finish()
+        retag = Retag(
+            index=index,
+            tag=reader.get("tag", str, hint=" naming the new shield tag"),
+            tags=_string_list(reader, "tags"),
+            components=_string_list(reader, "components"),
+            box=box,
+            faces=None if faces is None else tuple(faces),
+            highest_risk_run=run_dir,
+            highest_risk_count=count,
+        )
+        if all(getattr(retag, k) is None for k in ("tags", "components", "box", "faces", "highest_risk_run")):
+            reader.fail(None, "select faces with at least one of tags, components, box, faces, highest_risk")
+        reader.finish()
+        retags.append(retag)
+    return tuple(retags)
+
+
 def load_case(path):
     """Read and validate a case file.
 
@@ -246,12 +441,19 @@ def load_case(path):
     title = top.get("title", str, default=path.stem)
 
     vehicle = _Reader(path, text, _table(top, "vehicle"), ("vehicle",))
-    mesh_name = vehicle.get("mesh", str, hint=' naming the mesh file, e.g. mesh = "vehicle.obj"')
-    mesh_path = (path.parent / mesh_name).resolve()
-    if not mesh_path.is_file():
-        vehicle.fail("mesh", f"file {mesh_path} does not exist or is not a file; fix the path (relative to the case file)")
+    mesh_names = vehicle.get(
+        "mesh", (str, list), hint=' naming the mesh file, e.g. mesh = "vehicle.obj", or a list of files'
+    )
+    if isinstance(mesh_names, str):
+        mesh_names = [mesh_names]
+    if not mesh_names or not all(isinstance(name, str) for name in mesh_names):
+        vehicle.fail("mesh", "must be a file name or a non-empty list of file names")
+    mesh_paths = tuple(_existing_file(vehicle, "mesh", name) for name in mesh_names)
     length_unit = vehicle.get("length_unit", str, check=_choice(tuple(LENGTH_UNITS)))
-    tags_from = vehicle.get("tags_from", str, default="group", check=_choice(("group", "object", "material")))
+    tags_from = vehicle.get("tags_from", str, default="group")
+    tags_file = vehicle.get("tags_file", str, default=None)
+    if tags_file is not None:
+        tags_file = _existing_file(vehicle, "tags_file", tags_file)
     vehicle.finish()
 
     shields_table = _table(top, "shields")
@@ -326,15 +528,24 @@ def load_case(path):
         impact_diameter=reader.get("impact_diameter", float, default=0.01, check=_positive),
     )
     reader.finish()
+    components = _load_components(top, path, text)
+    thin = _load_thin(top, path, text)
+    panels = _load_panels(top, path, text, length_unit)
+    retags = _load_retags(top, path, text)
     top.finish(_SECTIONS)
 
     return Case(
         path=path.resolve(),
         text=text,
         title=title,
-        mesh_path=mesh_path,
+        mesh_paths=mesh_paths,
         length_unit=length_unit,
         tags_from=tags_from,
+        tags_file=tags_file,
+        components=components,
+        thin=thin,
+        panels=panels,
+        retags=retags,
         shields=shields,
         phases=tuple(phases),
         debris=debris,

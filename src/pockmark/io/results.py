@@ -97,3 +97,28 @@ def write_faces_vtp(path, vertices, faces, cell_arrays, field_data=None):
         polydata.field_data[name] = [value] if isinstance(value, str) else value
     with atomic_path(path) as temporary:
         polydata.save(str(temporary))
+
+
+def read_run(run_dir, columns):
+    """Read an earlier run: its summary and the named numeric columns of its faces.csv.
+
+    Raises
+    ------
+    FormatError
+        If the files are missing, unreadable or lack a column.
+    """
+    run_dir = Path(run_dir)
+    try:
+        summary = json.loads((run_dir / "summary.json").read_text(encoding="utf-8"))
+        with (run_dir / "faces.csv").open(newline="", encoding="utf-8") as handle:
+            reader = csv.reader(handle)
+            header = next(reader)
+            missing = [name for name in columns if name not in header]
+            if missing:
+                raise FormatError(f"{run_dir / 'faces.csv'}: no column {missing[0]!r}; was it written by pockmark?")
+            positions = [header.index(name) for name in columns]
+            rows = [[float(row[p]) for p in positions] for row in reader]
+    except (OSError, ValueError, StopIteration, UnicodeDecodeError) as error:
+        raise FormatError(f"{run_dir}: cannot read the earlier run ({error}); rerun it or fix the path") from None
+    data = np.asarray(rows, dtype=np.float64).reshape(-1, len(columns))
+    return summary, {name: data[:, i] for i, name in enumerate(columns)}

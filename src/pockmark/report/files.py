@@ -12,11 +12,17 @@ FACE_QUANTITIES = ("expected_impacts", "expected_penetrations", "penetrations_pe
 
 def face_columns(assessment):
     """Per-face columns ``{name: (m,) array}`` in the order they are written."""
-    mesh, face = assessment.mesh, assessment.face
+    vehicle, face = assessment.vehicle, assessment.face
+    mesh = vehicle.mesh
+    components = vehicle.components
     columns = {
         "face": np.arange(mesh.n_faces),
         "original_face_id": mesh.original_face_ids,
+        "face_origin": mesh.face_origins,
+        "side": mesh.face_sides,
         "shield_tag": np.asarray(mesh.tag_of_faces(), dtype=str),
+        "component": np.asarray([c.name for c in components], dtype=str)[vehicle.face_components],
+        "critical": np.asarray([c.role == "critical" for c in components], dtype=np.int64)[vehicle.face_components],
         "area_m2": mesh.face_areas,
     }
     for axis, name in enumerate("xyz"):
@@ -43,12 +49,17 @@ def write_run(assessment, summary, out_dir):
         if name not in skip and not name.startswith(("centroid_", "normal_"))
     }
     cells["shield_tag_id"] = mesh.face_tags.astype(np.int32)
+    cells["component_id"] = assessment.vehicle.face_components.astype(np.int32)
     headline = {key: summary[key] for key in ("title", "pnp", "expected_penetrations", "duration_years")}
     write_faces_vtp(
         out_dir / "faces.vtp",
         mesh.vertices,
         mesh.faces,
         cells,
-        field_data={"pockmark_summary": json.dumps(headline), "shield_tags": list(mesh.tag_names)},
+        field_data={
+            "pockmark_summary": json.dumps(headline),
+            "shield_tags": list(mesh.tag_names),
+            "components": [c.name for c in assessment.vehicle.components],
+        },
     )
     write_json(out_dir / "summary.json", summary)

@@ -48,59 +48,99 @@ def _versions():
 
 
 def build_summary(assessment):
-    """The contents of ``summary.json`` as a plain dict."""
-    case, mesh, face = assessment.case, assessment.mesh, assessment.face
+    """The contents of ``summary.json`` as a plain dict.
+
+    ``pnp`` and ``expected_penetrations`` count the faces of critical components only;
+    penetrations of shadow-only components are reported under ``shadow_only``. Impacts count
+    every face. ``by_tag`` and ``by_component`` give each group's own numbers and its role.
+    """
+    case, vehicle, face = assessment.case, assessment.vehicle, assessment.face
+    mesh = vehicle.mesh
     areas = mesh.face_areas
-    n_tags = len(mesh.tag_names)
-    tag_area = sum_by_group(areas, mesh.face_tags, n_tags)
-    tag_impacts = sum_by_group(face["expected_impacts"], mesh.face_tags, n_tags)
-    tag_penetrations = sum_by_group(face["expected_penetrations"], mesh.face_tags, n_tags)
+    critical_components = np.array([c.role == "critical" for c in vehicle.components])
+    critical = critical_components[vehicle.face_components]
+    tag_role = [vehicle.components[c].role for c in vehicle.component_of_tag()]
+
+    def group_totals(groups, n_groups):
+        return (
+            sum_by_group(areas, groups, n_groups),
+            sum_by_group(face["expected_impacts"], groups, n_groups),
+            sum_by_group(face["expected_penetrations"], groups, n_groups),
+        )
+
     by_tag = {}
-    for index, name in enumerate(mesh.tag_names):
-        entry = _totals(tag_area[index], tag_impacts[index], tag_penetrations[index])
+    for index, (name, values) in enumerate(zip(mesh.tag_names, zip(*group_totals(mesh.face_tags, len(mesh.tag_names))))):
+        entry = _totals(*values)
         shield = assessment.shields[name]
         entry.update(
+            role=tag_role[index],
             faces=int(np.count_nonzero(mesh.face_tags == index)),
             equation=shield.equation,
             areal_density_kg_m2=float(shield.areal_density),
         )
         by_tag[name] = entry
+    by_component = {}
+    n_components = len(vehicle.components)
+    tag_component = vehicle.component_of_tag()
+    for number, (component, values) in enumerate(
+        zip(vehicle.components, zip(*group_totals(vehicle.face_components, n_components)))
+    ):
+        entry = _totals(*values)
+        present = [t for t, c in zip(mesh.tag_names, tag_component) if c == number]
+        entry.update(role=component.role, tags=present)
+        by_component[component.name] = entry
+    by_component = {k: v for k, v in by_component.items() if v["tags"]}
+
     sources = [s for s in ("debris", "meteoroid") if f"{s}_impacts" in face]
     by_source = {
-        s: _totals(mesh.area, face[f"{s}_impacts"].sum(), face[f"{s}_penetrations"].sum()) for s in sources
+        s: _totals(
+            areas[critical].sum(), face[f"{s}_impacts"].sum(), face[f"{s}_penetrations"][critical].sum()
+        )
+        for s in sources
     }
     by_phase = []
     for phase in assessment.by_phase:
         impacts = sum(v["expected_impacts"] for v in phase["by_source"].values())
-        penetrations = sum(v["expected_penetrations"] for v in phase["by_source"].values())
+        penetrations = sum(v["expected_critical_penetrations"] for v in phase["by_source"].values())
         entry = {"name": phase["name"], "duration_years": phase["duration_years"]}
-        entry.update(_totals(mesh.area, impacts, penetrations))
+        entry.update(_totals(areas[critical].sum(), impacts, penetrations))
         entry["by_source"] = {
-            s: _totals(mesh.area, v["expected_impacts"], v["expected_penetrations"])
+            s: _totals(areas[critical].sum(), v["expected_impacts"], v["expected_critical_penetrations"])
             for s, v in phase["by_source"].items()
         }
         by_phase.append(entry)
-    order = np.argsort(face["expected_penetrations"])[::-1][:10]
-    total_penetrations = float(face["expected_penetrations"].sum())
+
+    critical_penetrations = face["expected_penetrations"] * critical
+    total_penetrations = float(critical_penetrations.sum())
+    order = np.argsort(-critical_penetrations, kind="stable")[:10]
     hotspots = [
         {
             "face": int(i),
             "original_face_id": int(mesh.original_face_ids[i]),
             "tag": mesh.tag_names[mesh.face_tags[i]],
+            "component": vehicle.components[vehicle.face_components[i]].name,
             "centroid_m": [float(x) for x in mesh.face_centroids[i]],
             "area_m2": float(areas[i]),
-            "expected_penetrations": float(face["expected_penetrations"][i]),
-            "share": float(face["expected_penetrations"][i] / total_penetrations) if total_penetrations > 0 else 0.0,
+            "expected_penetrations": float(critical_penetrations[i]),
+            "share": float(critical_penetrations[i] / total_penetrations) if total_penetrations > 0 else 0.0,
         }
         for i in order
     ]
     settings = case.analysis
     summary = {
         "title": case.title,
-        **_totals(mesh.area, face["expected_impacts"].sum(), total_penetrations),
+        **_totals(areas[critical].sum(), face["expected_impacts"].sum(), total_penetrations),
         "duration_years": float(assessment.duration),
         "impact_diameter_cm": settings.impact_diameter,
         "faces": int(mesh.n_faces),
+        "total_area_m2": float(mesh.area),
+        "bounds_m": mesh.bounds.tolist(),
+        "shadow_only": _totals(
+            areas[~critical].sum(),
+            face["expected_impacts"][~critical].sum(),
+            face["expected_penetrations"][~critical].sum(),
+        ),
+        "by_component": by_component,
         "by_tag": by_tag,
         "by_source": by_source,
         "by_phase": by_phase,
@@ -119,10 +159,10 @@ def build_summary(assessment):
         "shields": {tag: dict(shield.parameters, equation=shield.equation) for tag, shield in assessment.shields.items()},
         "inputs": {
             "case": {"path": str(case.path), "sha256": case.sha256},
+            "files": [{"path": str(p), "sha256": _file_sha256(p)} for p in case.input_files],
             "mesh": {
-                "path": str(case.mesh_path),
-                "sha256": _file_sha256(case.mesh_path),
-                "geometry_sha256": mesh.geometry_hash(),
+                "geometry_sha256": vehicle.base_geometry_hash,
+                "assembled_geometry_sha256": vehicle.assembled_geometry_hash,
             },
         },
         "versions": _versions(),
@@ -137,12 +177,14 @@ def format_summary(summary, out_dir=None):
     lines = []
     add = lines.append
     add(f"pockmark {summary['versions']['pockmark']}: {summary['title']}")
+    low, high = summary["bounds_m"]
+    extent = " × ".join(f"{b - a:.3g}" for a, b in zip(low, high))
     add(
-        f"  {summary['faces']} faces, {summary['area_m2']:.2f} m², "
+        f"  {summary['faces']} faces, {summary['total_area_m2']:.3g} m², bounding box {extent} m; "
         f"{summary['duration_years']:.2f} years in {len(summary['by_phase'])} phase(s)"
     )
     add("")
-    add(f"  Probability of no penetration  PNP = {summary['pnp']:.5f}")
+    add(f"  Probability of no penetration  PNP = {summary['pnp']:.5f}   (critical components)")
     add(f"  Expected penetrations          N   = {summary['expected_penetrations']:.4g}")
     add(f"  Expected impacts ≥ {summary['impact_diameter_cm'] * 10:g} mm         = {summary['expected_impacts']:.4g}")
     add("")
@@ -152,20 +194,22 @@ def format_summary(summary, out_dir=None):
         add(f"  {name:<12}{entry['expected_impacts']:>12.4g}{entry['expected_penetrations']:>15.4g}{entry['pnp']:>10.5f}")
     add("")
     total = summary["expected_penetrations"]
-    add(f"  {'shield tag':<18}{'area m²':>9}{'impacts':>11}{'penetrations':>14}{'share':>8}{'PNP':>10}")
-    ranked = sorted(summary["by_tag"].items(), key=lambda item: -item[1]["expected_penetrations"])
-    for name, entry in ranked:
-        share = entry["expected_penetrations"] / total if total > 0 else 0.0
-        add(
-            f"  {name:<18}{entry['area_m2']:>9.2f}{entry['expected_impacts']:>11.4g}"
-            f"{entry['expected_penetrations']:>14.4g}{share:>8.1%}{entry['pnp']:>10.5f}"
-        )
-    add("")
+    for group, label in (("by_component", "component"), ("by_tag", "shield tag")):
+        add(f"  {label:<18}{'area m²':>9}{'impacts':>11}{'penetrations':>14}{'share':>8}{'PNP':>10}")
+        ranked = sorted(summary[group].items(), key=lambda item: -item[1]["expected_penetrations"])
+        for name, entry in ranked:
+            critical = entry["role"] == "critical"
+            share = f"{entry['expected_penetrations'] / total:8.1%}" if critical and total > 0 else "  shadow"
+            add(
+                f"  {name:<18}{entry['area_m2']:>9.2f}{entry['expected_impacts']:>11.4g}"
+                f"{entry['expected_penetrations']:>14.4g}{share}{entry['pnp']:>10.5f}"
+            )
+        add("")
     add("  Highest-risk faces:")
     for spot in summary["hotspots"][:5]:
         x, y, z = spot["centroid_m"]
         add(
-            f"    face {spot['face']:>7}  {spot['tag']:<16} at ({x:6.2f}, {y:6.2f}, {z:6.2f}) m  "
+            f"    face {spot['face']:>7}  {spot['component']:<14} {spot['tag']:<16} at ({x:6.2f}, {y:6.2f}, {z:6.2f}) m  "
             f"N = {spot['expected_penetrations']:.3g}  ({spot['share']:.1%})"
         )
     if out_dir is not None:

@@ -16,8 +16,8 @@ from pockmark import environment
 from pockmark.ballistics.shields import make_shield
 from pockmark.errors import ConfigError, InputError, MeshError
 from pockmark.geometry.frames import body_from_orbital
-from pockmark.io import load_mesh
 from pockmark.risk.impacts import interpolate_angles, penetration_table
+from pockmark.risk.vehicle import build_vehicle
 from pockmark.visibility import VisibilityEngine
 
 logger = logging.getLogger(__name__)
@@ -61,13 +61,17 @@ class Assessment:
     """Results of :func:`assess`."""
 
     case: object
-    mesh: object
+    vehicle: object  # pockmark.risk.vehicle.Vehicle
     shields: dict
     duration: float  # [yr]
     face: dict  # name -> (m,) array of per-face results
     by_phase: list  # per phase: {"name", "duration_years", "by_source": {...}}
     environment: dict  # per phase and source: model parameters
     timings: dict = field(default_factory=dict)
+
+    @property
+    def mesh(self):
+        return self.vehicle.mesh
 
 
 def build_shields(case, mesh):
@@ -187,7 +191,8 @@ def assess(case, progress=None):
     """
     timings = {}
     clock = time.perf_counter()
-    mesh = load_mesh(case.mesh_path, case.length_unit, case.tags_from)
+    vehicle = build_vehicle(case)
+    mesh = vehicle.mesh
     if mesh.area <= 0:
         raise MeshError(f"{mesh.source}: all faces have zero area; check the mesh and its length unit")
     shields = build_shields(case, mesh)
@@ -212,6 +217,7 @@ def assess(case, progress=None):
 
     m = mesh.n_faces
     areas = mesh.face_areas
+    critical = np.array([c.role == "critical" for c in vehicle.components])[vehicle.face_components]
     face = {}
     by_phase = []
     environment_parameters = {}
@@ -231,6 +237,7 @@ def assess(case, progress=None):
             phase_summary["by_source"][source] = {
                 "expected_impacts": float(impacts.sum()),
                 "expected_penetrations": float(penetrations.sum()),
+                "expected_critical_penetrations": float(penetrations[critical].sum()),
             }
             environment_parameters.setdefault(phase.name, {})[source] = {
                 "model": flux.model,
@@ -255,7 +262,7 @@ def assess(case, progress=None):
     face["shadowed_fraction"] = np.clip(face["shadowed_fraction"], 0.0, 1.0)
     return Assessment(
         case=case,
-        mesh=mesh,
+        vehicle=vehicle,
         shields=shields,
         duration=case.duration,
         face=face,

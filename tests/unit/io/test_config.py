@@ -23,7 +23,7 @@ def write(folder, text):
 
 def test_valid_case_loads(folder):
     case = load_case(write(folder, make_case_text()))
-    assert case.mesh_path == (folder / "vehicle.obj").resolve()
+    assert case.mesh_paths == ((folder / "vehicle.obj").resolve(),)
     assert case.phases[0].altitude == 400.0 and case.phases[0].start == dt.date(2030, 1, 1)
     assert case.phases[0].start_year == 2030.0
     assert case.debris.projectile_density == 2.8  # default
@@ -75,3 +75,64 @@ def test_invalid_toml_and_wrong_paths(folder):
         load_case(folder)
     with pytest.raises(ConfigError, match="no such case file"):
         load_case(folder / "absent.toml")
+
+
+EXTRAS = """
+[components.shell]
+tags = ["hull"]
+role = "critical"
+
+[components.wings]
+tags = ["panel", "panel_back"]
+role = "shadow_only"
+closed = false
+
+[thin.panel]
+back_tag = "panel_back"
+
+[[panels]]
+mesh = "vehicle.obj"
+tag = "ram_panel"
+
+[[retag]]
+tag = "hull_heavy"
+tags = ["hull"]
+box = [[0.4, -1, -1], [1, 1, 1]]
+"""
+
+
+def test_components_thin_panels_and_retags(folder):
+    case = load_case(write(folder, make_case_text() + EXTRAS))
+    assert [c.name for c in case.components] == ["shell", "wings"]
+    assert case.components[1].role == "shadow_only" and not case.components[1].closed
+    assert case.thin == {"panel": "panel_back"}
+    assert case.panels[0].tag == "ram_panel" and case.panels[0].length_unit == "m"
+    rule = case.retags[0]
+    assert rule.tag == "hull_heavy" and rule.tags == ("hull",) and rule.box == ((0.4, -1, -1), (1, 1, 1))
+    components, index = case.component_of_tags(("hull", "panel", "panel_back", "ram_panel"))
+    assert [components[i].name for i in index] == ["shell", "wings", "wings", "ram_panel"]
+    assert components[-1].role == "critical"
+    assert case.input_files[:2] == [case.path, case.mesh_paths[0]]
+
+
+@pytest.mark.parametrize(
+    ("old", "new", "key", "words"),
+    [
+        ('role = "shadow_only"', 'role = "ignored"', "components.wings.role", "must be one of critical, shadow_only"),
+        ('tags = ["panel", "panel_back"]', 'tags = ["hull"]', "components.wings.tags", "already in component 'shell'"),
+        ("box = [[0.4, -1, -1], [1, 1, 1]]", "box = [[1, 1, 1], [0, 0, 0]]", "retag.0.box", "min <= max"),
+        ('tags = ["hull"]\nbox', 'tagz = ["hull"]\nbox', "retag.0.tagz", "unknown key"),
+    ],
+)
+def test_extra_section_mistakes(folder, old, new, key, words):
+    text = make_case_text() + EXTRAS.replace(old, new)
+    path = write(folder, text)
+    with pytest.raises(ConfigError) as caught:
+        load_case(path)
+    assert f": {key}: " in str(caught.value) and words in str(caught.value)
+
+
+def test_retag_needs_a_criterion(folder):
+    text = make_case_text() + '\n[[retag]]\ntag = "x"\n'
+    with pytest.raises(ConfigError, match=r"retag\.0: select faces with at least one of"):
+        load_case(write(folder, text))
