@@ -9,6 +9,7 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 import click  # noqa: E402
 
 from pockmark import __version__  # noqa: E402
+from pockmark.cli.check import check  # noqa: E402
 from pockmark.cli.run import run  # noqa: E402
 
 
@@ -24,6 +25,7 @@ def cli():
 
 
 cli.add_command(run)
+cli.add_command(check)
 
 if __name__ == "__main__":
     cli()
