@@ -11,6 +11,12 @@ from pockmark.io.obj import write_obj
 SEED = 20261201
 
 
+@pytest.fixture(autouse=True)
+def _private_environment_cache(tmp_path_factory, monkeypatch):
+    """Keep the on-disk environment cache of the tests out of the user's home."""
+    monkeypatch.setenv("POCKMARK_CACHE_DIR", str(tmp_path_factory.getbasetemp() / "environment-cache"))
+
+
 def write_parts(path, parts):
     """Write ``[(tag, trimesh.Trimesh), ...]`` as one OBJ with a group per part."""
     tag_names = sorted({tag for tag, _ in parts})

@@ -55,7 +55,7 @@ def test_flat_plate_single_direction(angle):
     flux = _Flux(direction, [7.0], [[1.0]])
     result = integrate_source(
         VisibilityEngine(mesh.vertices, mesh.faces, samples_per_face=1),
-        mesh, {"wall": shield}, flux, np.eye(3), impact_diameter=0.01, threads=1, progress=None,
+        mesh, {"wall": shield}, flux, impact_diameter=0.01, threads=1, progress=None,
     )
     critical = float(shield.critical_diameter(7.0, angle, 2.8))
     expected_per_year = flux.cumulative_flux(critical) * mesh.area * np.cos(theta)
@@ -73,7 +73,7 @@ def test_convex_body_in_isotropic_flux_follows_cauchy():
     flux = _Flux(directions, [10.0], np.full((n, 1), 1.0 / n))
     result = integrate_source(
         VisibilityEngine(mesh.vertices, mesh.faces, samples_per_face=1),
-        mesh, {"wall": shield}, flux, np.eye(3), impact_diameter=0.1, threads=None, progress=None,
+        mesh, {"wall": shield}, flux, impact_diameter=0.1, threads=None, progress=None,
     )
     hits_per_year = (result.penetration_flux * mesh.face_areas).sum()
     expected = flux.cumulative_flux(0.1) * mesh.area / 4.0
@@ -100,7 +100,7 @@ def test_thin_plate_is_hit_on_both_sides():
     flux = _Flux(fibonacci_directions(n), [10.0], np.full((n, 1), 1.0 / n))
     result = integrate_source(
         VisibilityEngine(mesh.vertices, mesh.faces, samples_per_face=1),
-        mesh, shields, flux, np.eye(3), impact_diameter=0.1, threads=None, progress=None,
+        mesh, shields, flux, impact_diameter=0.1, threads=None, progress=None,
     )
     per_face = result.penetration_flux * mesh.face_areas
     expected = flux.cumulative_flux(0.1) * 3.0 / 4.0

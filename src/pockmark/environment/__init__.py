@@ -18,9 +18,15 @@ Directional builders (:mod:`pockmark.environment.flux`) turn them into a
 * :func:`debris_flux` — magnitude from ``kessler_1991``; horizontal directions and speeds from
   circular-orbit crossing geometry with an assumed debris inclination population
   (:mod:`pockmark.environment.debris_directions`);
-* :func:`meteoroid_flux` — magnitude from ``grun_1985`` with the simplified NASA gravitational
-  focusing factor, isotropic directions on a Fibonacci grid with the Earth's disc removed, and
-  the NASA analytic speed distribution (:mod:`pockmark.environment.meteoroid_speed`).
+* :func:`meteoroid_flux` — magnitude from ``grun_1985`` with one of two gravitational
+  focusing conventions (``"nasa_1994"``, ``"ecss_2008"``), isotropic directions on a Fibonacci
+  grid with the Earth's disc cut exactly, and the corresponding speed distribution
+  (:mod:`pockmark.environment.meteoroid_speed`);
+* :func:`table_fluxes` — user environment tables (:mod:`pockmark.environment.tables`).
+
+:func:`phase_fluxes` (:mod:`pockmark.environment.phase`) assembles everything for one mission
+phase — debris epochs and solar activity, elliptical orbits, attitude (fixed, tumbling,
+spinning), user tables — as lists of fluxes in the body frame, memoised on disk.
 
 Earth-orbit helpers are in :mod:`pockmark.environment.orbit` and direction grids in
 :mod:`pockmark.environment.directions`.
@@ -31,17 +37,33 @@ from pockmark.environment.flux import DirectionalFlux, debris_flux, meteoroid_fl
 from pockmark.environment.grun_1985 import grun_1985
 from pockmark.environment.kessler_1991 import kessler_1991
 from pockmark.environment.orbit import circular_speed
+from pockmark.environment.phase import (
+    DEFAULT_SOLAR_FLUX,
+    Attitude,
+    DebrisSpec,
+    MeteoroidSpec,
+    PhaseSpec,
+    phase_fluxes,
+)
+from pockmark.environment.tables import table_fluxes
 
 #: Cumulative flux models by name; the key is the function name (and the CLI choice string).
 MODELS = {"kessler_1991": kessler_1991, "grun_1985": grun_1985}
 
 __all__ = [
+    "DEFAULT_SOLAR_FLUX",
     "MODELS",
+    "Attitude",
+    "DebrisSpec",
     "DirectionalFlux",
+    "MeteoroidSpec",
+    "PhaseSpec",
     "circular_speed",
     "debris_flux",
     "fibonacci_directions",
     "grun_1985",
     "kessler_1991",
     "meteoroid_flux",
+    "phase_fluxes",
+    "table_fluxes",
 ]

@@ -1,7 +1,9 @@
 """Quadrature grids of arrival directions on the unit sphere.
 
 Scope: deterministic, approximately equal-area point sets used to discretise isotropic (or
-isotropic-minus-Earth) particle fluxes in the local orbital frame.
+isotropic-minus-Earth) particle fluxes in the local orbital frame: the Fibonacci lattice
+(:func:`fibonacci_directions`) and the same lattice cut exactly at a cone about its axis
+(:func:`fibonacci_directions_above`).
 """
 
 import operator
@@ -70,3 +72,61 @@ def fibonacci_directions(n):
     radius = np.sqrt(np.maximum(0.0, 1.0 - z * z))
     azimuth = k * GOLDEN_ANGLE
     return np.column_stack((radius * np.cos(azimuth), radius * np.sin(azimuth), z))
+
+
+def fibonacci_directions_above(n, z_min):
+    """Fibonacci lattice restricted to the spherical cap above a height, with exact cell areas.
+
+    Parameters
+    ----------
+    n : int
+        Number of directions of the full lattice (:func:`fibonacci_directions`), >= 1.
+    z_min : float
+        Lower edge of the cap, in [−1, 1]: directions with :math:`z > z_{min}` are kept
+        (:math:`z_{min} = -\\cos\\eta` removes the cone of half-angle :math:`\\eta` about
+        :math:`-\\hat z`).
+
+    Returns
+    -------
+    directions : (k, 3) float
+        Unit vectors of the kept cells.
+    fractions : (k,) float
+        Fraction of the full sphere's solid angle each cell represents [unitless]; they sum to
+        the cap's fraction :math:`(1 - z_{min})/2` to round-off.
+
+    Raises
+    ------
+    InputError
+        If ``n`` is not a positive integer or ``z_min`` is not in [−1, 1].
+
+    Notes
+    -----
+    Point :math:`k` of the lattice is the centre of the equal-area band
+    :math:`1 - 2(k+1)/n \\le z \\le 1 - 2k/n`. Bands entirely above :math:`z_{min}` are kept
+    with the fraction :math:`1/n`; bands entirely below are dropped; the one band the cap's
+    edge cuts keeps only its part above the edge, represented by a point at that part's
+    centre height (same azimuth) with the fraction :math:`(z_{top} - z_{min})/2`. The kept
+    solid angle is therefore exact, where simply dropping lattice points inside the cone is
+    exact only to within :math:`1/n`.
+    """
+    units = fibonacci_directions(n)
+    count = units.shape[0]
+    z_cut = float(z_min)
+    if not (np.isfinite(z_cut) and -1.0 <= z_cut <= 1.0):
+        raise InputError(f"z_min must be in [−1, 1]; got {z_min!r}")
+    k = np.arange(count, dtype=np.float64)
+    top = 1.0 - 2.0 * k / count
+    bottom = 1.0 - 2.0 * (k + 1.0) / count
+    full = bottom >= z_cut
+    cut = (bottom < z_cut) & (top > z_cut)
+    fractions = np.where(full, 1.0 / count, 0.0)
+    directions = units.copy()
+    if np.any(cut):
+        b = int(np.flatnonzero(cut)[0])
+        z = 0.5 * (top[b] + z_cut)
+        radius = np.sqrt(max(0.0, 1.0 - z * z))
+        azimuth = b * GOLDEN_ANGLE
+        directions[b] = (radius * np.cos(azimuth), radius * np.sin(azimuth), z)
+        fractions[b] = 0.5 * (top[b] - z_cut)
+    keep = fractions > 0.0
+    return directions[keep], fractions[keep]

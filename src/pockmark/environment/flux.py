@@ -3,7 +3,9 @@
 Scope: turns the cumulative flux models (:func:`~pockmark.environment.kessler_1991.kessler_1991`
 for orbital debris, :func:`~pockmark.environment.grun_1985.grun_1985` for meteoroids) into a
 discrete distribution over arrival directions and impact speeds for a spacecraft in a circular
-orbit, in the form the risk integration consumes.
+orbit, in the form the risk integration consumes. The same container carries user environment
+tables (model ``"user_table"``, built by :mod:`pockmark.environment.tables`) and the fluxes of
+whole mission phases in the body frame (:mod:`pockmark.environment.phase`).
 
 Frame (fixed): the local orbital frame has :math:`\\hat x` along the flight direction
 (the spacecraft velocity, horizontal for a circular orbit), :math:`\\hat z` along the local
@@ -22,6 +24,8 @@ source the orientation average of :math:`\\max(0, n\\cdot u)` is 1/4, so a rando
 one-sided plate receives :math:`\\Phi_0/4` times the total weight, the flux the models give.
 """
 
+import re
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -30,18 +34,27 @@ from pockmark._validation import require_positive
 from pockmark.constants import tol
 from pockmark.environment import kessler_1991 as _kessler
 from pockmark.environment.debris_directions import _population, debris_direction_distribution
-from pockmark.environment.directions import fibonacci_directions
+from pockmark.environment.directions import fibonacci_directions_above
 from pockmark.environment.grun_1985 import grun_1985
-from pockmark.environment.meteoroid_speed import RAW_NORMALISATION_NASA, speed_bins_nasa
+from pockmark.environment.meteoroid_speed import (
+    RAW_NORMALISATION_NASA,
+    speed_bins_ecss_2008,
+    speed_bins_nasa,
+)
 from pockmark.environment.orbit import (
     circular_speed,
     earth_shielding_factor,
     earth_shielding_half_angle,
     focusing_factor_nasa,
 )
-from pockmark.errors import InputError
+from pockmark.errors import InputError, ModelRangeWarning
 
-_SOURCES = ("debris", "meteoroid")
+#: A source name: a letter or digit, then letters, digits, ``_``, ``-`` or ``.``. The built-in
+#: sources are ``"debris"`` and ``"meteoroid"``; user tables name their own.
+SOURCE_NAME_PATTERN = r"[A-Za-z0-9][A-Za-z0-9_.\-]*"
+
+#: Gravitational focusing conventions of the meteoroid flux (environment.md §2.2, §4 #10).
+FOCUSING_CONVENTIONS = ("nasa_1994", "ecss_2008")
 
 
 def _positive_diameter(diameter):
@@ -56,17 +69,25 @@ def _positive_diameter(diameter):
 
 
 def _debris_omnidirectional(flux, diameter):
-    """Φ0 = 4 F_kessler_1991(d) [m⁻² yr⁻¹] for the stored orbit and epoch."""
+    """Φ0 = 4 F_kessler_1991(d) [m⁻² yr⁻¹] for the stored orbit and epoch(s).
+
+    With ``parameters["epochs"]`` (a list of ``{"year", "solar_flux", "fraction"}``), the
+    time-weighted mean over the epochs: the direction-speed weights of the model depend on the
+    orbit only, so one flux with the averaged size distribution is exact for the total.
+    """
     d, issues = _kessler._check_diameter(diameter)
     _kessler._warn("kessler_1991", issues, stacklevel=4)
     p = flux.parameters
-    return 4.0 * _kessler._flux(
-        d,
-        p["altitude"],
-        _kessler._inclination_factor(p["inclination"]),
-        p["year"],
-        p["solar_flux"],
-    )
+    psi = _kessler._inclination_factor(p["inclination"])
+    epochs = p.get("epochs") or [
+        {"year": p["year"], "solar_flux": p["solar_flux"], "fraction": 1.0}
+    ]
+    total = 0.0
+    for epoch in epochs:
+        total = total + epoch["fraction"] * _kessler._flux(
+            d, p["altitude"], psi, epoch["year"], epoch["solar_flux"]
+        )
+    return 4.0 * total
 
 
 def _meteoroid_omnidirectional(flux, diameter):
@@ -76,9 +97,110 @@ def _meteoroid_omnidirectional(flux, diameter):
     return 4.0 * flux.parameters["focusing_factor"] * np.asarray(grun_1985(mass))
 
 
+def tabulated_cumulative_flux(diameters, fluxes, diameter, label="user_table"):
+    """Interpolate a tabulated cumulative flux, log-log between the tabulated diameters.
+
+    Parameters
+    ----------
+    diameters : (n,) float
+        Tabulated diameters [cm], strictly increasing, n >= 2.
+    fluxes : (n,) float
+        Cumulative flux of particles at least that large [m⁻² yr⁻¹], non-increasing, >= 0.
+    diameter : numeric
+        Diameters at which to evaluate [cm], > 0; ``numpy.inf`` gives 0, NaN propagates.
+    label : str
+        Name used in warnings.
+
+    Returns
+    -------
+    ndarray
+        Cumulative flux at ``diameter`` [m⁻² yr⁻¹], same shape.
+
+    Raises
+    ------
+    InputError
+        If a diameter is zero or negative.
+
+    Warns
+    -----
+    ModelRangeWarning
+        Once per call if any diameter lies below the smallest tabulated diameter, or above
+        the largest while the flux there is not zero.
+
+    Notes
+    -----
+    Inside the table, between two positive values the flux is a power law of the diameter
+    (linear in log–log); on an interval that ends at zero flux it falls linearly in the
+    diameter to zero (a power law cannot reach zero).
+
+    Outside the table, the choice is the conservative one (it never lowers the flux below what
+    the table implies):
+
+    * **below** the smallest diameter :math:`d_1` the flux can only be larger than
+      :math:`F(d_1)`; holding :math:`F(d_1)` would be a guaranteed underestimate, so the power
+      law of the first interval is continued (held constant if that interval ends at zero);
+    * **above** the largest diameter :math:`d_n` the flux can only be smaller than
+      :math:`F(d_n)`, so :math:`F(d_n)` is held: an upper bound, whereas a continued power law
+      could fall below the truth. End the table with a diameter where the flux is 0 to state
+      that no larger particles exist; then the flux is exactly 0 above it and no warning is
+      given.
+    """
+    d = _positive_diameter(diameter)
+    dia = np.asarray(diameters, dtype=np.float64)
+    flx = np.asarray(fluxes, dtype=np.float64)
+    flat = d.ravel()
+    out = np.full(flat.shape, np.nan)
+    finite = np.isfinite(flat)
+    out[np.isposinf(flat)] = 0.0
+    below = finite & (flat < dia[0])
+    above = finite & (flat > dia[-1])
+    inside = finite & ~below & ~above
+    log_d = np.log(dia)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        log_f = np.log(flx)
+        x = flat[inside]
+        i = np.clip(np.searchsorted(dia, x, side="right") - 1, 0, len(dia) - 2)
+        t = (np.log(x) - log_d[i]) / (log_d[i + 1] - log_d[i])
+        power = np.exp(log_f[i] + t * (log_f[i + 1] - log_f[i]))
+        linear = flx[i] * (dia[i + 1] - x) / (dia[i + 1] - dia[i])
+        value = np.where(flx[i + 1] > 0.0, power, np.where(flx[i] > 0.0, linear, 0.0))
+        value = np.where(x == dia[i + 1], flx[i + 1], value)
+        out[inside] = value
+        if flx[0] > 0.0 and flx[1] > 0.0:
+            slope = (log_f[1] - log_f[0]) / (log_d[1] - log_d[0])
+        else:
+            slope = 0.0
+        out[below] = flx[0] * (flat[below] / dia[0]) ** slope
+    out[above] = flx[-1]
+    issues = []
+    if np.any(below):
+        issues.append(
+            f"diameter below the smallest tabulated {dia[0]:g} cm for {int(below.sum())} "
+            f"value(s); the first interval's power law is continued"
+        )
+    if flx[-1] > 0.0 and np.any(above):
+        issues.append(
+            f"diameter above the largest tabulated {dia[-1]:g} cm for {int(above.sum())} "
+            f"value(s); its flux {flx[-1]:g} m⁻² yr⁻¹ is held (an upper bound; end the table "
+            f"with a zero flux to state that no larger particles exist)"
+        )
+    if issues:
+        warnings.warn(f"{label}: " + "; ".join(issues), ModelRangeWarning, stacklevel=3)
+    return out.reshape(d.shape)
+
+
+def _table_omnidirectional(flux, diameter):
+    """Φ0(≥ d) [m⁻² yr⁻¹] interpolated in the size distribution stored in the parameters."""
+    table = flux.parameters["size_distribution"]
+    return tabulated_cumulative_flux(
+        table["diameter_cm"], table["cumulative_flux"], diameter, label=f"user_table {flux.source}"
+    )
+
+
 _OMNIDIRECTIONAL = {
     "kessler_1991": _debris_omnidirectional,
     "grun_1985": _meteoroid_omnidirectional,
+    "user_table": _table_omnidirectional,
 }
 
 
@@ -89,12 +211,14 @@ class DirectionalFlux:
     Attributes
     ----------
     source : str
-        ``"debris"`` or ``"meteoroid"``.
+        Source name: ``"debris"``, ``"meteoroid"`` or a user table's name
+        (``SOURCE_NAME_PATTERN``).
     model : str
-        Registry key of the cumulative flux model: ``"kessler_1991"`` or ``"grun_1985"``.
+        Key of the cumulative flux evaluator: ``"kessler_1991"``, ``"grun_1985"`` or
+        ``"user_table"`` (size distribution stored in ``parameters["size_distribution"]``).
     directions : (nd, 3) float
-        Unit vectors in the local orbital frame pointing from the vehicle toward where the
-        particles come from.
+        Unit vectors pointing from the vehicle toward where the particles come from, in the
+        local orbital frame, or in the body frame when ``parameters["frame"] == "body"``.
     speeds : (nv,) float
         Impact speeds relative to the vehicle [km s⁻¹].
     weights : (nd, nv) float
@@ -124,8 +248,11 @@ class DirectionalFlux:
     parameters: dict
 
     def __post_init__(self):
-        if self.source not in _SOURCES:
-            raise InputError(f"source must be one of {_SOURCES}; got {self.source!r}")
+        if not isinstance(self.source, str) or not re.fullmatch(SOURCE_NAME_PATTERN, self.source):
+            raise InputError(
+                f"source must be a name of letters, digits, '_', '-' or '.' starting with a "
+                f"letter or digit (e.g. 'debris', 'meteoroid'); got {self.source!r}"
+            )
         if self.model not in _OMNIDIRECTIONAL:
             raise InputError(
                 f"unknown flux model {self.model!r}; choose one of: "
@@ -176,9 +303,11 @@ class DirectionalFlux:
         numeric
             Flux :math:`\\Phi_0(\\ge d)` per unit cross-sectional area normal to the particles'
             direction of travel [m⁻² yr⁻¹]; 4 × the flux on a randomly tumbling one-sided
-            plate. Debris: :math:`4 F_{kessler\\_1991}(d)`. Meteoroids:
+            plate. Debris: :math:`4 F_{kessler\\_1991}(d)` (time-averaged over
+            ``parameters["epochs"]`` when present). Meteoroids:
             :math:`4 G F_{grun\\_1985}(\\pi\\rho d^3/6)` with the focusing factor :math:`G` in
-            ``parameters`` and no Earth shielding (that is in the weights).
+            ``parameters`` and no Earth shielding (that is in the weights). User tables: the
+            stored size distribution, interpolated by :func:`tabulated_cumulative_flux`.
 
         Raises
         ------
@@ -320,6 +449,7 @@ def meteoroid_flux(
     directions=600,
     speed_bin_width=1.0,
     earth_shielding=True,
+    focusing="nasa_1994",
 ):
     """Directional meteoroid flux for a circular Earth orbit, Grün et al. (1985) model.
 
@@ -337,43 +467,55 @@ def meteoroid_flux(
     earth_shielding : bool
         Remove the directions blocked by the Earth and its atmosphere (default ``True``).
         ``False`` keeps the whole sphere; for tests and for comparison only.
+    focusing : {"nasa_1994", "ecss_2008"}
+        Gravitational focusing convention (see Notes). Default ``"nasa_1994"``.
 
     Returns
     -------
     DirectionalFlux
         ``source="meteoroid"``, ``model="grun_1985"``. ``weights[j, k]`` is
-        :math:`p_k / n` for each kept direction, with :math:`p_k` the speed-bin probability and
-        :math:`n` the grid size, so the weights sum to the shielding factor (to within
-        :math:`1/n`).
+        :math:`a_j p_k` with :math:`a_j` the fraction of the sphere cell :math:`j` covers and
+        :math:`p_k` the speed-bin probability, so the weights sum to the shielding factor
+        :math:`s_f` (exactly, to round-off).
 
     Raises
     ------
     InputError
         For an altitude not above 100 km, a non-positive density, a grid size that is not a
-        positive integer, or a non-positive speed-bin width.
+        positive integer, a non-positive speed-bin width or an unknown focusing convention.
 
     Notes
     -----
-    One consistent convention, that of the ISS design documents (NASA SSP 30425 Rev. B and
-    TM-4527, 1994), recorded in ``parameters``:
+    Two focusing conventions, never combined (environment.md §2.2 and §4 #10); the one used is
+    recorded in ``parameters["focusing"]`` with its factor in ``"focusing_factor"``:
 
-    * magnitude :math:`\\Phi_0(\\ge d) = 4\\,G\\,F_{grun\\_1985}(\\pi\\rho d^3/6)`, with the
-      simplified focusing factor :math:`G = 1 + (R_E + 100\\ \\mathrm{km})/(R_E + h)`
-      (:func:`~pockmark.environment.orbit.focusing_factor_nasa`);
-    * Earth shielding by removing every grid direction inside the cone of half-angle
-      :math:`\\eta` about nadir (:math:`-\\hat z`),
-      :math:`\\sin\\eta = (R_E + 100\\ \\mathrm{km})/(R_E + h)`; the orientation average then
-      reproduces :math:`s_f = (1 + \\cos\\eta)/2`, a zenith-facing plate keeps its whole flux
-      and a nadir-facing plate :math:`\\cos^2\\eta` of it;
-    * speeds from :func:`~pockmark.environment.meteoroid_speed.speed_bins_nasa` (renormalised
-      from its recalled integral 1.0037), independent of direction;
+    * ``"nasa_1994"``, that of the ISS design documents (NASA SSP 30425 Rev. B and TM-4527,
+      1994): :math:`G = 1 + (R_E + 100\\ \\mathrm{km})/(R_E + h)`
+      (:func:`~pockmark.environment.orbit.focusing_factor_nasa`) with the NASA analytic speed
+      distribution as it stands (:func:`~pockmark.environment.meteoroid_speed.speed_bins_nasa`,
+      renormalised from its recalled integral 1.0037);
+    * ``"ecss_2008"``, the physical procedure of ECSS-E-ST-10-04C Annex C.1.2:
+      :math:`\\bar G = \\sum n_\\infty (1 + v_{esc}^2/v_\\infty^2)` and the speed distribution
+      re-focused to the altitude, applied to a free-space distribution **derived by us** from
+      the NASA one (:func:`~pockmark.environment.meteoroid_speed.speed_bins_ecss_2008`, which
+      documents the derivation and why it lands near the NASA factor).
+
+    Common to both:
+
+    * magnitude :math:`\\Phi_0(\\ge d) = 4\\,G\\,F_{grun\\_1985}(\\pi\\rho d^3/6)`;
+    * Earth shielding by removing the cone of half-angle :math:`\\eta` about nadir
+      (:math:`-\\hat z`), :math:`\\sin\\eta = (R_E + 100\\ \\mathrm{km})/(R_E + h)`; the
+      orientation average then reproduces :math:`s_f = (1 + \\cos\\eta)/2`, a zenith-facing
+      plate keeps its whole flux and a nadir-facing plate :math:`\\cos^2\\eta` of it;
+    * speeds independent of direction;
     * arrival directions otherwise isotropic **in the vehicle frame**. This version has no
-      asymmetry from the spacecraft's own motion (more flux on ram faces than on wake faces);
-      a later version will compose Earth-frame isotropy with the vehicle velocity (the ECSS
-      :math:`K` factor, about 1.08 on average).
+      asymmetry from the spacecraft's own motion (more flux on ram faces than on wake faces,
+      the ECSS :math:`K` factor, about 1.08 on average).
 
-    The Fibonacci grid has its axis along :math:`\\hat z`, so the Earth's cone is cut along
-    equal-area band boundaries and the shielded fraction is exact to within :math:`1/n`.
+    The directions are the Fibonacci lattice with its axis along :math:`\\hat z`, cut exactly
+    at the cone (:func:`~pockmark.environment.directions.fibonacci_directions_above`): the one
+    band the cone's rim crosses keeps only its unblocked part, so the total weight equals
+    :math:`s_f` exactly rather than to within :math:`1/n`.
 
     See Also
     --------
@@ -382,23 +524,36 @@ def meteoroid_flux(
     h = _scalar("altitude", altitude, "km")
     eta = earth_shielding_half_angle(h)  # validates h > 100 km
     density = _density(projectile_density)
-    units = fibonacci_directions(directions)
-    count = units.shape[0]
-    if earth_shielding:
-        units = units[units[:, 2] > -np.cos(np.radians(eta))]
-    speeds, probabilities = speed_bins_nasa(speed_bin_width)
-    weights = np.outer(np.full(units.shape[0], 1.0 / count), probabilities)
+    if focusing not in FOCUSING_CONVENTIONS:
+        raise InputError(
+            f"unknown meteoroid focusing convention {focusing!r}; choose one of: "
+            f"{', '.join(FOCUSING_CONVENTIONS)}"
+        )
+    z_min = -np.cos(np.radians(eta)) if earth_shielding else -1.0
+    units, fractions = fibonacci_directions_above(directions, z_min)
+    count = int(directions)
+    if focusing == "nasa_1994":
+        speeds, probabilities = speed_bins_nasa(speed_bin_width)
+        factor = focusing_factor_nasa(h)
+        distribution = "nasa analytic n(v), 11.1-72.2 km/s, as it stands"
+    else:
+        speeds, probabilities, factor = speed_bins_ecss_2008(h, speed_bin_width)
+        distribution = (
+            "nasa analytic n(v) taken at 100 km, escape speed removed and re-focused to the "
+            "altitude (ECSS Annex C.1.2 mapping; free-space distribution derived by pockmark)"
+        )
+    weights = np.outer(fractions, probabilities)
     parameters = {
         "altitude": h,
-        "focusing": "nasa",
-        "focusing_factor": focusing_factor_nasa(h),
+        "focusing": focusing,
+        "focusing_factor": float(factor),
         "earth_shielding": bool(earth_shielding),
         "earth_shielding_half_angle": eta,
         "earth_shielding_factor": earth_shielding_factor(h) if earth_shielding else 1.0,
         "directions": count,
         "directions_kept": int(units.shape[0]),
-        "direction_grid": "fibonacci, axis along zenith",
-        "speed_distribution": "nasa analytic n(v), 11.1-72.2 km/s",
+        "direction_grid": "fibonacci, axis along zenith, Earth cone cut exactly",
+        "speed_distribution": distribution,
         "speed_distribution_raw_integral": RAW_NORMALISATION_NASA,
         "speed_bin_width": float(speed_bin_width),
         "directionality": "isotropic in the vehicle frame, no spacecraft-motion asymmetry",
@@ -415,4 +570,5 @@ def meteoroid_flux(
     )
 
 
-__all__ = ["DirectionalFlux", "debris_flux", "meteoroid_flux"]
+__all__ = ["FOCUSING_CONVENTIONS", "DirectionalFlux", "debris_flux", "meteoroid_flux",
+           "tabulated_cumulative_flux"]

@@ -24,15 +24,19 @@ _SECTIONS = {"title", "vehicle", "shields", "phases", "environment", "analysis",
 
 @dataclass(frozen=True)
 class Phase:
-    """One mission phase on a circular orbit with the body fixed in the local orbital frame."""
+    """One mission phase: an orbit, its dates and the vehicle's attitude."""
 
     name: str
-    altitude: float  # [km]
+    perigee_altitude: float  # [km]; equal to the apogee for a circular orbit
+    apogee_altitude: float  # [km]
     inclination: float  # [°]
     start: dt.date
     duration: float  # [yr]
+    attitude: str  # fixed, tumbling or spinning
     flight_axis: str
     nadir_axis: str
+    spin_axis: str | None = None
+    spin_steps: int = 12
 
     @property
     def start_year(self):
@@ -45,14 +49,16 @@ class Phase:
 @dataclass(frozen=True)
 class DebrisSettings:
     model: str
-    solar_flux: float  # 13-month smoothed F10.7 of the year before [sfu]
+    solar_flux: float | dict | None  # F10.7 [sfu], one value or {year: value}; None = model default
     projectile_density: float  # [g cm⁻³]
+    population: tuple | None = None  # ((inclination [°], weight, half-width [°]), ...)
 
 
 @dataclass(frozen=True)
 class MeteoroidSettings:
     model: str
     projectile_density: float  # [g cm⁻³]
+    focusing: str = "nasa_1994"
 
 
 @dataclass(frozen=True)
@@ -63,6 +69,7 @@ class AnalysisSettings:
     seed: int
     threads: int  # 0 = all cores
     impact_diameter: float  # impacts are counted for particles at least this large [cm]
+    orbit_samples: int = 8  # true-anomaly samples of an elliptical orbit
 
 
 #: Roles a component can play: a penetration of a critical component counts as a failure of
@@ -121,6 +128,7 @@ class Case:
     debris: DebrisSettings | None
     meteoroid: MeteoroidSettings | None
     analysis: AnalysisSettings
+    environment_tables: tuple = ()  # paths of user environment tables
     components: tuple = ()
     thin: dict = None  # front tag -> back tag of open sheets exposed on both sides
     panels: tuple = ()
@@ -129,7 +137,7 @@ class Case:
     @property
     def input_files(self):
         """Every file the case reads, for the manifest and so that no output replaces one."""
-        files = [self.path, *self.mesh_paths, *(p.path for p in self.panels)]
+        files = [self.path, *self.mesh_paths, *(p.path for p in self.panels), *self.environment_tables]
         if self.tags_file is not None:
             files.append(self.tags_file)
         files += [r.highest_risk_run / "faces.csv" for r in self.retags if r.highest_risk_run]
@@ -475,21 +483,41 @@ def load_case(path):
         start = reader.get("start", dt.date, hint=" as a TOML date, e.g. start = 2030-01-01")
         if isinstance(start, dt.datetime):
             start = start.date()
-        phases.append(
-            Phase(
-                name=reader.get("name", str, default=f"phase {index + 1}"),
-                altitude=reader.get("altitude", float, check=_positive),
-                inclination=reader.get(
-                    "inclination", float, check=lambda v: None if 0 <= v <= 180 else "must be in [0, 180] degrees"
-                ),
-                start=start,
-                duration=reader.get("duration", float, check=_positive),
-                flight_axis=reader.get("flight_axis", str, default="+x", check=_choice(tuple(ATTITUDE_AXES))),
-                nadir_axis=reader.get("nadir_axis", str, default="-z", check=_choice(tuple(ATTITUDE_AXES))),
-            )
+        if "altitude" in table:
+            altitude = reader.get("altitude", float, check=_positive)
+            perigee = apogee = altitude
+            for key in ("perigee_altitude", "apogee_altitude"):
+                if key in table:
+                    reader.fail(key, "give either altitude (circular orbit) or perigee_altitude and apogee_altitude")
+        else:
+            perigee = reader.get("perigee_altitude", float, check=_positive, hint=" or altitude = ... for a circular orbit")
+            apogee = reader.get("apogee_altitude", float, check=_positive)
+            if apogee < perigee:
+                reader.fail("apogee_altitude", f"must be >= perigee_altitude ({perigee:g} km)")
+        attitude = reader.get("attitude", str, default="fixed", check=_choice(("fixed", "tumbling", "spinning")))
+        axes = tuple(ATTITUDE_AXES)
+        phase = Phase(
+            name=reader.get("name", str, default=f"phase {index + 1}"),
+            perigee_altitude=perigee,
+            apogee_altitude=apogee,
+            inclination=reader.get(
+                "inclination", float, check=lambda v: None if 0 <= v <= 180 else "must be in [0, 180] degrees"
+            ),
+            start=start,
+            duration=reader.get("duration", float, check=_positive),
+            attitude=attitude,
+            flight_axis=reader.get("flight_axis", str, default="+x", check=_choice(axes)),
+            nadir_axis=reader.get("nadir_axis", str, default="-z", check=_choice(axes)),
+            spin_axis=reader.get("spin_axis", str, default=None, check=_choice(axes))
+            if attitude == "spinning"
+            else None,
+            spin_steps=reader.get("spin_steps", int, default=12, check=_positive) if attitude == "spinning" else 12,
         )
-        if phases[-1].flight_axis[1] == phases[-1].nadir_axis[1]:
+        if phase.flight_axis[1] == phase.nadir_axis[1]:
             reader.fail("nadir_axis", "must be perpendicular to flight_axis; pick another body axis")
+        if attitude == "spinning" and phase.spin_axis is None:
+            reader.fail("spin_axis", 'missing; a spinning phase names the body spin axis, e.g. spin_axis = "+z"')
+        phases.append(phase)
         reader.finish()
 
     environment = _Reader(path, text, _table(top, "environment"), ("environment",))
@@ -497,10 +525,30 @@ def load_case(path):
     debris_table = _table(environment, "debris", required=False)
     if debris_table is not None:
         reader = _Reader(path, text, debris_table, ("environment", "debris"))
+        solar_flux = reader.get("solar_flux", (int, float, dict), default=None)
+        if isinstance(solar_flux, bool) or (isinstance(solar_flux, (int, float)) and not solar_flux > 0):
+            reader.fail("solar_flux", "must be a positive number [sfu] or a table {year = value}")
+        if isinstance(solar_flux, dict):
+            try:
+                solar_flux = {int(year): float(value) for year, value in solar_flux.items()}
+                valid = all(v > 0 for v in solar_flux.values())
+            except (TypeError, ValueError):
+                valid = False
+            if not valid:
+                reader.fail("solar_flux", 'a table must map years to positive values, e.g. { 2030 = 150.0, "2031" = 120.0 }')
+        population = reader.get("inclination_population", list, default=None)
+        if population is not None:
+            rows = []
+            for row in population:
+                if not (isinstance(row, list) and len(row) in (2, 3) and all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in row)):
+                    reader.fail("inclination_population", "must be a list of [inclination, weight] or [inclination, weight, half_width] rows")
+                rows.append(tuple(float(v) for v in row))
+            population = tuple(rows)
         debris = DebrisSettings(
             model=reader.get("model", str, default="kessler_1991", check=_choice(("kessler_1991",))),
-            solar_flux=reader.get("solar_flux", float, check=_positive),
+            solar_flux=float(solar_flux) if isinstance(solar_flux, int) else solar_flux,
             projectile_density=reader.get("projectile_density", float, default=2.8, check=_positive),
+            population=population,
         )
         reader.finish()
     meteoroid_table = _table(environment, "meteoroid", required=False)
@@ -511,8 +559,15 @@ def load_case(path):
             projectile_density=reader.get("projectile_density", float, default=1.0, check=_positive),
         )
         reader.finish()
-    if debris is None and meteoroid is None:
-        environment.fail(None, "name at least one source: [environment.debris] or [environment.meteoroid]")
+    environment.used.add("tables")
+    table_names = environment.table.get("tables", [])
+    if not isinstance(table_names, list) or not all(isinstance(name, str) for name in table_names):
+        environment.fail("tables", 'must be a list of environment table files, e.g. tables = ["debris.csv"]')
+    environment_tables = tuple(_existing_file(environment, "tables", name) for name in table_names)
+    if debris is None and meteoroid is None and not environment_tables:
+        environment.fail(
+            None, "name at least one source: [environment.debris], [environment.meteoroid] or tables = [...]"
+        )
     environment.finish()
 
     analysis_table = _table(top, "analysis", required=False) or {}
@@ -526,6 +581,7 @@ def load_case(path):
         seed=reader.get("seed", int, default=0, check=lambda v: None if v >= 0 else "must be >= 0"),
         threads=reader.get("threads", int, default=0, check=lambda v: None if v >= 0 else "must be >= 0 (0 = all cores)"),
         impact_diameter=reader.get("impact_diameter", float, default=0.01, check=_positive),
+        orbit_samples=reader.get("orbit_samples", int, default=8, check=lambda v: None if v >= 2 else "must be >= 2"),
     )
     reader.finish()
     components = _load_components(top, path, text)

@@ -30,10 +30,9 @@ def face_columns(assessment):
     for axis, name in enumerate("xyz"):
         columns[f"normal_{name}"] = mesh.face_normals[:, axis]
     columns.update({name: face[name] for name in FACE_QUANTITIES})
-    for source in ("debris", "meteoroid"):
+    for source in assessment.sources:
         for kind in ("impacts", "penetrations"):
-            if f"{source}_{kind}" in face:
-                columns[f"{source}_{kind}"] = face[f"{source}_{kind}"]
+            columns[f"{source}_{kind}"] = face[f"{source}_{kind}"]
     return columns
 
 

@@ -91,7 +91,7 @@ def build_summary(assessment):
         by_component[component.name] = entry
     by_component = {k: v for k, v in by_component.items() if v["tags"]}
 
-    sources = [s for s in ("debris", "meteoroid") if f"{s}_impacts" in face]
+    sources = assessment.sources
     by_source = {
         s: _totals(
             areas[critical].sum(), face[f"{s}_impacts"].sum(), face[f"{s}_penetrations"][critical].sum()

@@ -6,7 +6,6 @@ order) and per-phase totals; :mod:`pockmark.report.summary` turns it into tables
 """
 
 import logging
-import math
 import time
 from dataclasses import dataclass, field
 
@@ -15,35 +14,15 @@ import numpy as np
 from pockmark import environment
 from pockmark.ballistics.shields import make_shield
 from pockmark.errors import ConfigError, InputError, MeshError
-from pockmark.geometry.frames import body_from_orbital
+from pockmark.io.environment_table import load_environment_table
 from pockmark.risk.impacts import interpolate_angles, penetration_table
 from pockmark.risk.vehicle import build_vehicle
 from pockmark.visibility import VisibilityEngine
 
 logger = logging.getLogger(__name__)
 
-#: Debris fluxes of a phase are averaged over time samples at most this far apart [yr].
-DEBRIS_TIME_STEP = 0.5
-
 #: Upper bound on faces × directions held in memory at once by the integration.
 CHUNK_ELEMENTS = 4_000_000
-
-
-@dataclass(frozen=True)
-class TimeAveragedFlux:
-    """A directional flux whose size distribution is the mean of several epochs' fluxes.
-
-    The direction-speed weights of the 1991 debris model depend on the orbit only, so
-    averaging the cumulative flux over the phase's epochs is exact for the phase total.
-    """
-
-    epochs: tuple  # DirectionalFlux per time sample, sharing directions, speeds and weights
-
-    def __getattr__(self, name):
-        return getattr(self.epochs[0], name)
-
-    def cumulative_flux(self, diameter):
-        return sum(f.cumulative_flux(diameter) for f in self.epochs) / len(self.epochs)
 
 
 @dataclass
@@ -67,6 +46,7 @@ class Assessment:
     face: dict  # name -> (m,) array of per-face results
     by_phase: list  # per phase: {"name", "duration_years", "by_source": {...}}
     environment: dict  # per phase and source: model parameters
+    sources: tuple  # source names in the order they first appear
     timings: dict = field(default_factory=dict)
 
     @property
@@ -96,39 +76,57 @@ def build_shields(case, mesh):
     return shields
 
 
-def build_fluxes(case, phase):
-    """Directional fluxes of every source named by the case, for one phase."""
-    fluxes = {}
+def build_fluxes(case, index):
+    """Directional fluxes in the body frame of every source the case names, for one phase.
+
+    Returns ``{source: [DirectionalFlux, ...]}``; see :func:`pockmark.environment.phase_fluxes`.
+    """
+    phase = case.phases[index]
     settings = case.analysis
+    where = case.where("phases", index)
+    spec = environment.PhaseSpec(
+        name=phase.name,
+        start_year=phase.start_year,
+        duration=phase.duration,
+        perigee_altitude=phase.perigee_altitude,
+        apogee_altitude=phase.apogee_altitude,
+        inclination=phase.inclination,
+        attitude=environment.Attitude(
+            mode=phase.attitude,
+            flight_axis=phase.flight_axis,
+            nadir_axis=phase.nadir_axis,
+            spin_axis=phase.spin_axis,
+            spin_steps=phase.spin_steps,
+        ),
+        orbit_samples=settings.orbit_samples,
+    )
+    debris = meteoroid = None
+    if case.debris is not None:
+        options = {"projectile_density": case.debris.projectile_density, "population": case.debris.population}
+        if case.debris.solar_flux is not None:
+            options["solar_flux"] = case.debris.solar_flux
+        debris = environment.DebrisSpec(**options)
+    if case.meteoroid is not None:
+        meteoroid = environment.MeteoroidSpec(
+            projectile_density=case.meteoroid.projectile_density, focusing=case.meteoroid.focusing
+        )
     try:
-        if case.debris is not None:
-            samples = max(1, math.ceil(phase.duration / DEBRIS_TIME_STEP))
-            epochs = tuple(
-                environment.debris_flux(
-                    altitude=phase.altitude,
-                    inclination=phase.inclination,
-                    year=phase.start_year + (s + 0.5) * phase.duration / samples,
-                    solar_flux=case.debris.solar_flux,
-                    projectile_density=case.debris.projectile_density,
-                    azimuth_bins=settings.debris_azimuth_bins,
-                )
-                for s in range(samples)
-            )
-            fluxes["debris"] = TimeAveragedFlux(epochs)
-        if case.meteoroid is not None:
-            fluxes["meteoroid"] = environment.meteoroid_flux(
-                altitude=phase.altitude,
-                projectile_density=case.meteoroid.projectile_density,
-                directions=settings.directions,
-            )
+        tables = tuple(load_environment_table(path) for path in case.environment_tables)
+        return environment.phase_fluxes(
+            spec,
+            debris=debris,
+            meteoroid=meteoroid,
+            tables=tables,
+            directions=settings.directions,
+            debris_azimuth_bins=settings.debris_azimuth_bins,
+        )
     except InputError as error:
-        raise ConfigError(f"{case.where('phases', case.phases.index(phase))}: {error}") from None
-    return fluxes
+        raise ConfigError(f"{where}: {error}") from None
 
 
-def integrate_source(engine, mesh, shields, flux, rotation, impact_diameter, threads, progress):
-    """Impact and penetration rates per face for one source in one attitude."""
-    directions = np.ascontiguousarray(np.asarray(flux.directions) @ rotation.T)
+def integrate_source(engine, mesh, shields, flux, impact_diameter, threads, progress):
+    """Impact and penetration rates per face for one directional flux in the body frame."""
+    directions = np.ascontiguousarray(flux.directions, dtype=np.float64)
     weights = np.asarray(flux.weights, dtype=np.float64)
     direction_weights = weights.sum(axis=1)
     tables = [penetration_table(shields[name], flux) for name in mesh.tag_names]
@@ -199,14 +197,14 @@ def assess(case, progress=None):
     timings["load_seconds"] = time.perf_counter() - clock
 
     clock = time.perf_counter()
-    phase_fluxes = [build_fluxes(case, phase) for phase in case.phases]
+    phase_fluxes = [build_fluxes(case, index) for index in range(len(case.phases))]
     timings["environment_seconds"] = time.perf_counter() - clock
 
     settings = case.analysis
     threads = _usable_threads(settings.threads)
     clock = time.perf_counter()
     engine = VisibilityEngine(mesh.vertices, mesh.faces, samples_per_face=settings.samples_per_face, seed=settings.seed)
-    total = sum(len(f.directions) for fluxes in phase_fluxes for f in fluxes.values())
+    total = sum(len(f.directions) for fluxes in phase_fluxes for group in fluxes.values() for f in group)
     done = 0
 
     def advance(count):
@@ -222,16 +220,30 @@ def assess(case, progress=None):
     by_phase = []
     environment_parameters = {}
     open_impacts = np.zeros(m)
+    sources = []
     for phase, fluxes in zip(case.phases, phase_fluxes):
-        rotation = body_from_orbital(phase.flight_axis, phase.nadir_axis)
         phase_summary = {"name": phase.name, "duration_years": phase.duration, "by_source": {}}
-        for source, flux in fluxes.items():
-            result = integrate_source(
-                engine, mesh, shields, flux, rotation, settings.impact_diameter, threads, advance
-            )
-            impacts = areas * phase.duration * result.impact_flux * result.visible_exposure
-            penetrations = areas * phase.duration * result.penetration_flux
-            open_impacts += areas * phase.duration * result.impact_flux * result.open_exposure
+        for source, group in fluxes.items():
+            if source not in sources:
+                sources.append(source)
+            impacts = np.zeros(m)
+            penetrations = np.zeros(m)
+            for flux in group:
+                result = integrate_source(engine, mesh, shields, flux, settings.impact_diameter, threads, advance)
+                impacts += areas * phase.duration * result.impact_flux * result.visible_exposure
+                penetrations += areas * phase.duration * result.penetration_flux
+                open_impacts += areas * phase.duration * result.impact_flux * result.open_exposure
+                environment_parameters.setdefault(phase.name, {}).setdefault(source, []).append(
+                    {
+                        "model": flux.model,
+                        "parameters": flux.parameters,
+                        "directions": len(flux.directions),
+                        "speed_bins": len(flux.speeds),
+                        "total_weight": float(np.sum(flux.weights)),
+                        "mean_speed_km_s": float(flux.mean_speed()),
+                        "impact_flux_per_m2_year": result.impact_flux,
+                    }
+                )
             for name, values in ((f"{source}_impacts", impacts), (f"{source}_penetrations", penetrations)):
                 face[name] = face.get(name, np.zeros(m)) + values
             phase_summary["by_source"][source] = {
@@ -239,18 +251,9 @@ def assess(case, progress=None):
                 "expected_penetrations": float(penetrations.sum()),
                 "expected_critical_penetrations": float(penetrations[critical].sum()),
             }
-            environment_parameters.setdefault(phase.name, {})[source] = {
-                "model": flux.model,
-                "parameters": flux.parameters,
-                "directions": len(flux.directions),
-                "speed_bins": len(flux.speeds),
-                "mean_speed_km_s": float(flux.mean_speed()),
-                "impact_flux_per_m2_year": result.impact_flux,
-            }
         by_phase.append(phase_summary)
     timings["shadowing_and_integration_seconds"] = time.perf_counter() - clock
 
-    sources = [s for s in ("debris", "meteoroid") if f"{s}_impacts" in face]
     face["expected_impacts"] = sum(face[f"{s}_impacts"] for s in sources)
     face["expected_penetrations"] = sum(face[f"{s}_penetrations"] for s in sources)
     safe_area = np.where(areas > 0, areas, np.inf)
@@ -268,5 +271,6 @@ def assess(case, progress=None):
         face=face,
         by_phase=by_phase,
         environment=environment_parameters,
+        sources=tuple(sources),
         timings=timings,
     )

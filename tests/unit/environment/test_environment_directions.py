@@ -49,3 +49,31 @@ def test_isotropic_quadrature():
 def test_rejects_bad_count(bad):
     with pytest.raises(InputError, match="positive integer"):
         fibonacci_directions(bad)
+
+
+# ---------------------------------------------------------------- the lattice cut at a cap
+
+
+@pytest.mark.parametrize("n", [7, 600, 2000])
+@pytest.mark.parametrize("eta", [8.84, 61.40, 72.89, 90.0])
+def test_cap_cut_exactly(n, eta):
+    """The kept solid angle is exactly the cap's, (1 + cos η)/2 of the sphere (ECSS-E-ST-10-04C
+    Annex C.1.3.1, environment.md §2.3), and every kept direction lies above the cut."""
+    from pockmark.environment.directions import fibonacci_directions_above
+
+    z_min = -np.cos(np.radians(eta))
+    units, fractions = fibonacci_directions_above(n, z_min)
+    assert fractions.sum() == pytest.approx((1 + np.cos(np.radians(eta))) / 2, rel=1e-13)
+    assert np.all(units[:, 2] > z_min)
+    np.testing.assert_allclose(np.linalg.norm(units, axis=1), 1.0, atol=1e-14)
+    assert np.all(fractions <= 1.0 / n + 1e-16)
+
+
+def test_cap_cut_whole_sphere_and_errors():
+    from pockmark.environment.directions import fibonacci_directions_above
+
+    units, fractions = fibonacci_directions_above(600, -1.0)
+    np.testing.assert_array_equal(units, fibonacci_directions(600))
+    np.testing.assert_allclose(fractions, 1 / 600, rtol=1e-15)
+    with pytest.raises(InputError, match="z_min"):
+        fibonacci_directions_above(600, 1.5)

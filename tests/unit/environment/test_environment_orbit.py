@@ -87,3 +87,62 @@ def test_focusing_factor_nasa():
     assert focusing_factor_nasa(100.0) == pytest.approx(2.0)
     assert focusing_factor_nasa(1e9) == pytest.approx(1.0, abs=1e-5)
     assert focusing_factor_nasa([400.0, 800.0]).shape == (2,)
+
+
+# ---------------------------------------------------------------- escape speed, ECSS focusing
+
+
+def test_escape_speed_values():
+    from pockmark.environment.orbit import escape_speed
+
+    # environment.md §3.2 [B]: 10.845 km/s at 400 km and 11.093 km/s at 100 km (printed to
+    # 3 decimals; the note used μ = 398600 km³ s⁻², R_E = 6378 km, here 398600.4418 and
+    # 6378.137, which shifts the 4th digit): tolerance 1e-3 km/s.
+    assert escape_speed(400.0) == pytest.approx(10.845, abs=1e-3)
+    assert escape_speed(100.0) == pytest.approx(11.093, abs=1e-3)
+    # exact relation to the circular speed
+    assert escape_speed(400.0) == pytest.approx(np.sqrt(2) * circular_speed(400.0), rel=1e-15)
+
+
+@pytest.mark.parametrize("bad", [0.0, -1.0, np.nan, np.inf])
+def test_focusing_factor_ecss_rejects_bad_speed(bad):
+    from pockmark.environment.orbit import focusing_factor_ecss
+
+    with pytest.raises(InputError, match="free_space_speed"):
+        focusing_factor_ecss(400.0, bad)
+
+
+def test_focusing_factor_ecss_broadcasts():
+    from pockmark.environment.orbit import focusing_factor_ecss
+
+    out = focusing_factor_ecss(np.array([[400.0], [800.0]]), np.array([15.0, 20.0, 30.0]))
+    assert out.shape == (2, 3)
+    assert np.all(np.diff(out, axis=1) < 0) and np.all(np.diff(out, axis=0) < 0)
+    assert isinstance(focusing_factor_ecss(400.0, 20.0), float)
+
+
+@pytest.mark.parametrize(
+    "perigee, apogee, samples, match",
+    [(400.0, 300.0, 8, "apogee_altitude"), (0.0, 300.0, 8, "altitude"),
+     (400.0, np.nan, 8, "apogee_altitude"), (400.0, 500.0, 0, "samples"),
+     (400.0, 500.0, 2.0, "samples")],
+)
+def test_elliptical_orbit_samples_errors(perigee, apogee, samples, match):
+    from pockmark.environment.orbit import elliptical_orbit_samples
+
+    with pytest.raises(InputError, match=match):
+        elliptical_orbit_samples(perigee, apogee, samples)
+
+
+@pytest.mark.parametrize("samples", [1, 2, 3, 8, 9])
+def test_elliptical_orbit_samples_shape(samples):
+    from pockmark.environment.orbit import elliptical_orbit_samples
+
+    nu, altitude, fraction = elliptical_orbit_samples(300.0, 2000.0, samples)
+    assert len(nu) == len(altitude) == len(fraction) == samples // 2 + 1
+    assert nu[0] == 0.0 and altitude[0] == 300.0
+    assert np.all((altitude >= 300.0) & (altitude <= 2000.0))
+    assert np.all(np.diff(altitude) > 0)
+    assert fraction.sum() == pytest.approx(1.0, abs=1e-15)
+    if samples % 2 == 0:
+        assert nu[-1] == 180.0 and altitude[-1] == 2000.0

@@ -24,7 +24,8 @@ def write(folder, text):
 def test_valid_case_loads(folder):
     case = load_case(write(folder, make_case_text()))
     assert case.mesh_paths == ((folder / "vehicle.obj").resolve(),)
-    assert case.phases[0].altitude == 400.0 and case.phases[0].start == dt.date(2030, 1, 1)
+    assert case.phases[0].perigee_altitude == case.phases[0].apogee_altitude == 400.0
+    assert case.phases[0].start == dt.date(2030, 1, 1) and case.phases[0].attitude == "fixed"
     assert case.phases[0].start_year == 2030.0
     assert case.debris.projectile_density == 2.8  # default
     assert case.analysis.directions == 200
@@ -47,6 +48,8 @@ def line_of(text, needle):
         ("seed = 3", "sead = 3", "analysis.sead", "unknown key"),
         ('length_unit = "m"', 'length_unit = "furlong"', "vehicle.length_unit", "must be one of mm"),
         ("duration = 2.0", "duration = 0", "phases.0.duration", "must be > 0"),
+        ("solar_flux = 100.0", "solar_flux = { 2030 = -1 }", "environment.debris.solar_flux", "positive values"),
+
     ],
 )
 def test_mistakes_name_file_line_and_key(folder, old, new, key, words):
@@ -59,9 +62,24 @@ def test_mistakes_name_file_line_and_key(folder, old, new, key, words):
     assert words in message
 
 
+@pytest.mark.parametrize(
+    ("old", "new", "line", "words"),
+    [
+        ('nadir_axis = "-z"', 'nadir_axis = "-z"\nattitude = "spinning"', "[[phases]]", "phases.0.spin_axis: missing"),
+        ("altitude = 400.0", "altitude = 400.0\napogee_altitude = 900.0", "apogee_altitude = 900.0", "either altitude"),
+    ],
+)
+def test_orbit_and_attitude_mistakes(folder, old, new, line, words):
+    text = make_case_text(**{old: new})
+    path = write(folder, text)
+    with pytest.raises(ConfigError) as caught:
+        load_case(path)
+    assert f"{path}:{line_of(text, line)}: " in str(caught.value) and words in str(caught.value)
+
+
 def test_missing_key_and_missing_mesh(folder):
-    text = make_case_text(**{"solar_flux = 100.0": ""})
-    with pytest.raises(ConfigError, match=r"environment\.debris\.solar_flux: missing"):
+    text = make_case_text(**{"duration = 2.0": ""})
+    with pytest.raises(ConfigError, match=r"phases\.0\.duration: missing"):
         load_case(write(folder, text))
     text = make_case_text(**{'mesh = "{mesh}"': 'mesh = "nowhere.obj"'})
     with pytest.raises(ConfigError, match="does not exist"):
