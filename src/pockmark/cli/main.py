@@ -10,6 +10,7 @@ import click  # noqa: E402
 
 from pockmark import __version__  # noqa: E402
 from pockmark.cli.check import check  # noqa: E402
+from pockmark.cli.environment import environment  # noqa: E402
 from pockmark.cli.run import run  # noqa: E402
 
 
@@ -26,6 +27,7 @@ def cli():
 
 cli.add_command(run)
 cli.add_command(check)
+cli.add_command(environment)
 
 if __name__ == "__main__":
     cli()

@@ -15,8 +15,8 @@ from pockmark.errors import FormatError
 RUN_FILES = ("summary.json", "faces.csv", "faces.vtp")
 
 
-def prepare_output_dir(out_dir, inputs, overwrite=False):
-    """Create ``out_dir`` and check that writing the run there harms nothing.
+def prepare_output_dir(out_dir, inputs, overwrite=False, files=RUN_FILES):
+    """Create ``out_dir`` and check that writing ``files`` there harms nothing.
 
     Raises
     ------
@@ -27,7 +27,7 @@ def prepare_output_dir(out_dir, inputs, overwrite=False):
     out_dir = Path(out_dir)
     if out_dir.exists() and not out_dir.is_dir():
         raise FormatError(f"{out_dir}: exists and is not a directory; choose another --out")
-    targets = [(out_dir / name).resolve() for name in RUN_FILES]
+    targets = [(out_dir / name).resolve() for name in files]
     for source in inputs:
         if Path(source).resolve() in targets:
             raise FormatError(
