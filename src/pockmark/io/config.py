@@ -607,4 +607,5 @@ def load_case(path):
         debris=debris,
         meteoroid=meteoroid,
         analysis=analysis,
+        environment_tables=environment_tables,
     )
