@@ -1,5 +1,6 @@
 """Unit tests of pockmark.environment.phase: epochs, orbits, validation, discretisation, cache."""
 
+import logging
 import warnings
 
 import numpy as np
@@ -346,6 +347,7 @@ def test_unwritable_cache_is_skipped(tmp_path, monkeypatch, caplog):
     blocker = tmp_path / "file"
     blocker.write_text("x")
     monkeypatch.setenv("POCKMARK_CACHE_DIR", str(blocker / "cache"))
+    caplog.set_level(logging.WARNING, logger="pockmark")  # a CLI test may have quietened it
     result = phase_fluxes(_phase(), debris=DebrisSpec())
     assert len(result["debris"]) == 1
     assert "could not write the environment cache" in caplog.text
