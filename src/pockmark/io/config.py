@@ -19,7 +19,7 @@ from pockmark.errors import ConfigError
 from pockmark.geometry.frames import ATTITUDE_AXES
 from pockmark.geometry.units import LENGTH_UNITS
 
-_SECTIONS = {"title", "vehicle", "shields", "phases", "environment", "analysis", "components", "thin", "panels", "retag"}
+_SECTIONS = {"title", "extends", "requirement", "vehicle", "shields", "phases", "environment", "analysis", "components", "thin", "panels", "retag"}
 
 
 @dataclass(frozen=True)
@@ -86,6 +86,7 @@ class Component:
     tags: tuple
     role: str = "critical"
     closed: bool = True  # the health check expects its parts to be closed surfaces
+    pnp_requirement: float | None = None  # required probability of no penetration
 
 
 @dataclass(frozen=True)
@@ -119,6 +120,7 @@ class Case:
     path: Path
     text: str
     title: str
+    sources: tuple  # ((path, text), ...): this file, then the files it extends
     mesh_paths: tuple  # one file, or one file per tag or component
     length_unit: str
     tags_from: str
@@ -129,6 +131,7 @@ class Case:
     meteoroid: MeteoroidSettings | None
     analysis: AnalysisSettings
     environment_tables: tuple = ()  # paths of user environment tables
+    pnp_requirement: float | None = None  # required PNP of the vehicle (critical components)
     components: tuple = ()
     thin: dict = None  # front tag -> back tag of open sheets exposed on both sides
     panels: tuple = ()
@@ -137,7 +140,7 @@ class Case:
     @property
     def input_files(self):
         """Every file the case reads, for the manifest and so that no output replaces one."""
-        files = [self.path, *self.mesh_paths, *(p.path for p in self.panels), *self.environment_tables]
+        files = [*(p for p, _ in self.sources), *self.mesh_paths, *(p.path for p in self.panels), *self.environment_tables]
         if self.tags_file is not None:
             files.append(self.tags_file)
         files += [r.highest_risk_run / "faces.csv" for r in self.retags if r.highest_risk_run]
@@ -175,7 +178,7 @@ class Case:
 
     def where(self, *keys):
         """``"file:line"`` of a key path such as ``("shields", "bus", "standoff")``."""
-        return f"{self.path}:{_line_of(self.text, keys)}"
+        return _Sources(self.sources).where(keys)
 
 
 _HEADER = re.compile(r"^\s*(\[\[?)\s*([^\]]+?)\s*\]\]?\s*(#.*)?$")
@@ -187,7 +190,12 @@ def _split_dotted(name):
 
 
 def _line_of(text, keys):
-    """Best-effort line number of a key path in TOML text (1 if not found).
+    """Best-effort line number of a key path in TOML text (1 if not found)."""
+    return _find_line(text, keys)[0]
+
+
+def _find_line(text, keys):
+    """``(line, exact)``: line of a key path in TOML text, and whether the key itself was found.
 
     Integers in ``keys`` index arrays of tables (``[[phases]]``). Tables and keys are found
     by a line scan, which covers the plain TOML that case files use.
@@ -209,16 +217,33 @@ def _line_of(text, keys):
             depth = _matches(table, keys)
             if depth == len(table) and depth > best_depth:
                 best, best_depth = number, depth
+                if depth == len(keys):
+                    return number, True
             continue
         found = _KEY.match(line)
         if found:
             path = table + _split_dotted(found.group(1))
             if _matches(path, keys) == len(keys):
                 if len(path) == len(keys):
-                    return number
+                    return number, True
                 if best_depth < len(keys):
                     best, best_depth = number, len(keys)
-    return best
+    return best, False
+
+
+class _Sources:
+    """The case file and the files it extends, for error locations: ``[(path, text), ...]``."""
+
+    def __init__(self, entries):
+        self.entries = list(entries)
+
+    def where(self, keys):
+        for path, text in self.entries:
+            line, exact = _find_line(text, keys)
+            if exact:
+                return f"{path}:{line}"
+        path, text = self.entries[0]
+        return f"{path}:{_find_line(text, keys)[0]}"
 
 
 def _matches(path, keys):
@@ -240,8 +265,7 @@ class _Reader:
     def fail(self, key, message):
         path = self.keys + ((key,) if key is not None else ())
         dotted = ".".join(str(k) for k in path) or "(top level)"
-        line = _line_of(self.text, path)
-        raise ConfigError(f"{self.case_path}:{line}: {dotted}: {message}")
+        raise ConfigError(f"{self.text.where(path)}: {dotted}: {message}")
 
     def get(self, key, kind, default=..., check=None, hint=""):
         self.used.add(key)
@@ -266,6 +290,10 @@ class _Reader:
         unknown = sorted(set(self.table) - set(allowed))
         if unknown:
             self.fail(unknown[0], f"unknown key; valid keys here: {', '.join(sorted(allowed))}")
+
+
+def _probability(value):
+    return None if 0 < value < 1 else "must be a probability between 0 and 1 (exclusive)"
 
 
 def _positive(value):
@@ -305,14 +333,14 @@ def _string_list(reader, key):
     return None if values is None else tuple(values)
 
 
-def _load_components(top, path, text):
+def _load_components(top, path, sources):
     table = _table(top, "components", required=False) or {}
     components = []
     seen = {}
     for name, body in table.items():
         if not isinstance(body, dict):
             top.fail("components", f"components.{name} must be a table ([components.{name}])")
-        reader = _Reader(path, text, body, ("components", name))
+        reader = _Reader(path, sources, body, ("components", name))
         tags = _string_list(reader, "tags")
         if tags is None:
             reader.fail("tags", 'missing; list the shield tags of this component, e.g. tags = ["tank"]')
@@ -326,32 +354,33 @@ def _load_components(top, path, text):
                 tags=tags,
                 role=reader.get("role", str, default="critical", check=_choice(COMPONENT_ROLES)),
                 closed=reader.get("closed", bool, default=True),
+                pnp_requirement=reader.get("pnp_requirement", float, default=None, check=_probability),
             )
         )
         reader.finish()
     return tuple(components)
 
 
-def _load_thin(top, path, text):
+def _load_thin(top, path, sources):
     table = _table(top, "thin", required=False) or {}
     thin = {}
     for tag, body in table.items():
         if not isinstance(body, dict):
             top.fail("thin", f"thin.{tag} must be a table ([thin.{tag}])")
-        reader = _Reader(path, text, body, ("thin", tag))
+        reader = _Reader(path, sources, body, ("thin", tag))
         thin[tag] = reader.get("back_tag", str, default=tag)
         reader.finish()
     return thin
 
 
-def _load_panels(top, path, text, default_unit):
+def _load_panels(top, path, sources, default_unit):
     top.used.add("panels")
     entries = top.table.get("panels", [])
     if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
         top.fail("panels", "must be a list of [[panels]] tables")
     panels = []
     for index, body in enumerate(entries):
-        reader = _Reader(path, text, body, ("panels", index))
+        reader = _Reader(path, sources, body, ("panels", index))
         panels.append(
             Panel(
                 path=_existing_file(reader, "mesh", reader.get("mesh", str)),
@@ -364,14 +393,14 @@ def _load_panels(top, path, text, default_unit):
     return tuple(panels)
 
 
-def _load_retags(top, path, text):
+def _load_retags(top, path, sources):
     top.used.add("retag")
     entries = top.table.get("retag", [])
     if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
         top.fail("retag", "must be a list of [[retag]] tables")
     retags = []
     for index, body in enumerate(entries):
-        reader = _Reader(path, text, body, ("retag", index))
+        reader = _Reader(path, sources, body, ("retag", index))
         box = reader.get("box", list, default=None)
         if box is not None:
             try:
@@ -388,7 +417,7 @@ def _load_retags(top, path, text):
         run_dir = count = None
         risk = reader.get("highest_risk", dict, default=None)
         if risk is not None:
-            risk_reader = _Reader(path, text, risk, ("retag", index, "highest_risk"))
+            risk_reader = _Reader(path, sources, risk, ("retag", index, "highest_risk"))
             run_dir = (path.parent / risk_reader.get("run", str)).resolve()
             if not (run_dir / "faces.csv").is_file() or not (run_dir / "summary.json").is_file():
                 risk_reader.fail("run", f"{run_dir} holds no faces.csv and summary.json of an earlier run")
@@ -411,13 +440,96 @@ def _load_retags(top, path, text):
     return tuple(retags)
 
 
+#: Keys whose values are file paths, resolved against the file that states them before a
+#: variant is merged onto its base.
+_PATH_KEYS = (("vehicle", "mesh"), ("vehicle", "tags_file"), ("environment", "tables"))
+
+
+def _read_toml(path):
+    if path.is_dir():
+        raise ConfigError(f"{path}: is a directory; name the case file (.toml) inside it")
+    try:
+        raw = path.read_bytes()
+    except FileNotFoundError:
+        raise ConfigError(f"{path}: no such case file; check the path") from None
+    except OSError as error:
+        raise ConfigError(f"{path}: cannot be read ({error.strerror})") from None
+    try:
+        text = raw.decode("utf-8")
+        return text, tomllib.loads(text)
+    except UnicodeDecodeError:
+        raise ConfigError(f"{path}: not UTF-8 text; save the case file as UTF-8") from None
+    except tomllib.TOMLDecodeError as error:
+        raise ConfigError(f"{path}: invalid TOML: {error}") from None
+
+
+def _absolute_paths(document, folder):
+    """Resolve the relative file paths of a base case against its own folder."""
+
+    def resolve(value):
+        if isinstance(value, str):
+            return str((folder / value).resolve())
+        if isinstance(value, list):
+            return [resolve(v) for v in value]
+        return value
+
+    for section, key in _PATH_KEYS:
+        table = document.get(section)
+        if isinstance(table, dict) and key in table:
+            table[key] = resolve(table[key])
+    for panel in document.get("panels", []) if isinstance(document.get("panels"), list) else []:
+        if isinstance(panel, dict) and "mesh" in panel:
+            panel["mesh"] = resolve(panel["mesh"])
+    for rule in document.get("retag", []) if isinstance(document.get("retag"), list) else []:
+        risk = rule.get("highest_risk") if isinstance(rule, dict) else None
+        if isinstance(risk, dict) and "run" in risk:
+            risk["run"] = resolve(risk["run"])
+    return document
+
+
+def _merge(base, variant):
+    """The variant's tables override the base's key by key; [[panels]] and [[retag]] add to it."""
+    merged = dict(base)
+    for key, value in variant.items():
+        if key in ("panels", "retag") and isinstance(value, list) and isinstance(base.get(key), list):
+            merged[key] = base[key] + value
+        elif isinstance(value, dict) and isinstance(base.get(key), dict):
+            merged[key] = _merge(base[key], value)
+        else:
+            merged[key] = value
+    return merged
+
+
+def _read_with_bases(path, chain):
+    """``([(path, text), ...], merged document)`` for a case and the cases it extends."""
+    resolved = path.resolve()
+    if resolved in chain:
+        raise ConfigError(f"{path}: extends itself through {' -> '.join(str(p) for p in chain)}; remove the loop")
+    text, document = _read_toml(path)
+    extends = document.pop("extends", None)
+    if extends is None:
+        return [(resolved, text)], document
+    if not isinstance(extends, str):
+        line = _line_of(text, ("extends",))
+        raise ConfigError(f"{path}:{line}: extends: must name the base case file, e.g. extends = \"baseline.toml\"")
+    base_path = path.parent / extends
+    if not base_path.is_file():
+        line = _line_of(text, ("extends",))
+        raise ConfigError(f"{path}:{line}: extends: {base_path} does not exist or is not a file; fix the path")
+    base_entries, base_document = _read_with_bases(base_path, chain + (resolved,))
+    base_document = _absolute_paths(base_document, base_path.resolve().parent)
+    return [(resolved, text), *base_entries], _merge(base_document, document)
+
+
 def load_case(path):
     """Read and validate a case file.
 
     Parameters
     ----------
     path : str or pathlib.Path
-        The TOML case file. Relative paths inside it are relative to its folder.
+        The TOML case file. Relative paths inside it are relative to its folder. A case may
+        ``extends = "base.toml"``: it then states only what changes; its tables override the
+        base's key by key, and its ``[[panels]]`` and ``[[retag]]`` are added to the base's.
 
     Returns
     -------
@@ -429,26 +541,14 @@ def load_case(path):
         Naming the file, line and key of the first problem and what is valid there.
     """
     path = Path(path)
-    if path.is_dir():
-        raise ConfigError(f"{path}: is a directory; name the case file (.toml) inside it")
-    try:
-        raw = path.read_bytes()
-    except FileNotFoundError:
-        raise ConfigError(f"{path}: no such case file; check the path") from None
-    except OSError as error:
-        raise ConfigError(f"{path}: cannot be read ({error.strerror})") from None
-    try:
-        text = raw.decode("utf-8")
-        document = tomllib.loads(text)
-    except UnicodeDecodeError:
-        raise ConfigError(f"{path}: not UTF-8 text; save the case file as UTF-8") from None
-    except tomllib.TOMLDecodeError as error:
-        raise ConfigError(f"{path}: invalid TOML: {error}") from None
-
-    top = _Reader(path, text, document, ())
+    entries, document = _read_with_bases(path, chain=())
+    text = entries[0][1]
+    sources = _Sources(entries)
+    top = _Reader(path, sources, document, ())
+    top.used.add("extends")
     title = top.get("title", str, default=path.stem)
 
-    vehicle = _Reader(path, text, _table(top, "vehicle"), ("vehicle",))
+    vehicle = _Reader(path, sources, _table(top, "vehicle"), ("vehicle",))
     mesh_names = vehicle.get(
         "mesh", (str, list), hint=' naming the mesh file, e.g. mesh = "vehicle.obj", or a list of files'
     )
@@ -479,7 +579,7 @@ def load_case(path):
         top.fail("phases", "missing; add at least one [[phases]] table")
     phases = []
     for index, table in enumerate(phase_list):
-        reader = _Reader(path, text, table, ("phases", index))
+        reader = _Reader(path, sources, table, ("phases", index))
         start = reader.get("start", dt.date, hint=" as a TOML date, e.g. start = 2030-01-01")
         if isinstance(start, dt.datetime):
             start = start.date()
@@ -520,11 +620,11 @@ def load_case(path):
         phases.append(phase)
         reader.finish()
 
-    environment = _Reader(path, text, _table(top, "environment"), ("environment",))
+    environment = _Reader(path, sources, _table(top, "environment"), ("environment",))
     debris = meteoroid = None
     debris_table = _table(environment, "debris", required=False)
     if debris_table is not None:
-        reader = _Reader(path, text, debris_table, ("environment", "debris"))
+        reader = _Reader(path, sources, debris_table, ("environment", "debris"))
         solar_flux = reader.get("solar_flux", (int, float, dict), default=None)
         if isinstance(solar_flux, bool) or (isinstance(solar_flux, (int, float)) and not solar_flux > 0):
             reader.fail("solar_flux", "must be a positive number [sfu] or a table {year = value}")
@@ -553,7 +653,7 @@ def load_case(path):
         reader.finish()
     meteoroid_table = _table(environment, "meteoroid", required=False)
     if meteoroid_table is not None:
-        reader = _Reader(path, text, meteoroid_table, ("environment", "meteoroid"))
+        reader = _Reader(path, sources, meteoroid_table, ("environment", "meteoroid"))
         meteoroid = MeteoroidSettings(
             model=reader.get("model", str, default="grun_1985", check=_choice(("grun_1985",))),
             projectile_density=reader.get("projectile_density", float, default=1.0, check=_positive),
@@ -571,7 +671,7 @@ def load_case(path):
     environment.finish()
 
     analysis_table = _table(top, "analysis", required=False) or {}
-    reader = _Reader(path, text, analysis_table, ("analysis",))
+    reader = _Reader(path, sources, analysis_table, ("analysis",))
     analysis = AnalysisSettings(
         directions=reader.get("directions", int, default=600, check=lambda v: None if v >= 20 else "must be >= 20"),
         debris_azimuth_bins=reader.get(
@@ -584,16 +684,23 @@ def load_case(path):
         orbit_samples=reader.get("orbit_samples", int, default=8, check=lambda v: None if v >= 2 else "must be >= 2"),
     )
     reader.finish()
-    components = _load_components(top, path, text)
-    thin = _load_thin(top, path, text)
-    panels = _load_panels(top, path, text, length_unit)
-    retags = _load_retags(top, path, text)
+    requirement = _table(top, "requirement", required=False)
+    pnp_requirement = None
+    if requirement is not None:
+        reader = _Reader(path, sources, requirement, ("requirement",))
+        pnp_requirement = reader.get("pnp", float, check=_probability)
+        reader.finish()
+    components = _load_components(top, path, sources)
+    thin = _load_thin(top, path, sources)
+    panels = _load_panels(top, path, sources, length_unit)
+    retags = _load_retags(top, path, sources)
     top.finish(_SECTIONS)
 
     return Case(
         path=path.resolve(),
         text=text,
         title=title,
+        sources=tuple(sources.entries),
         mesh_paths=mesh_paths,
         length_unit=length_unit,
         tags_from=tags_from,
@@ -608,4 +715,5 @@ def load_case(path):
         meteoroid=meteoroid,
         analysis=analysis,
         environment_tables=environment_tables,
+        pnp_requirement=pnp_requirement,
     )

@@ -88,6 +88,8 @@ def build_summary(assessment):
         entry = _totals(*values)
         present = [t for t, c in zip(mesh.tag_names, tag_component) if c == number]
         entry.update(role=component.role, tags=present)
+        if component.pnp_requirement is not None:
+            entry["requirement"] = _verdict(entry["pnp"], component.pnp_requirement)
         by_component[component.name] = entry
     by_component = {k: v for k, v in by_component.items() if v["tags"]}
 
@@ -110,6 +112,18 @@ def build_summary(assessment):
         }
         by_phase.append(entry)
 
+    by_size = {
+        # The last bin is open-ended; JSON has no infinity, so its upper edge is null.
+        source: {
+            "edges_cm": [e if np.isfinite(e) else None for e in b["size_edges_cm"]],
+            "expected_penetrations": b["size_penetrations"].tolist(),
+        }
+        for source, b in assessment.breakdowns.items()
+    }
+    by_direction = {
+        source: {"directions": b["directions"].tolist(), "expected_penetrations": b["direction_penetrations"].tolist()}
+        for source, b in assessment.breakdowns.items()
+    }
     critical_penetrations = face["expected_penetrations"] * critical
     total_penetrations = float(critical_penetrations.sum())
     order = np.argsort(-critical_penetrations, kind="stable")[:10]
@@ -129,6 +143,9 @@ def build_summary(assessment):
     settings = case.analysis
     summary = {
         "title": case.title,
+        "requirement": None if case.pnp_requirement is None else _verdict(
+            float(probability_of_no_penetration(total_penetrations)), case.pnp_requirement
+        ),
         **_totals(areas[critical].sum(), face["expected_impacts"].sum(), total_penetrations),
         "duration_years": float(assessment.duration),
         "impact_diameter_cm": settings.impact_diameter,
@@ -145,6 +162,9 @@ def build_summary(assessment):
         "by_source": by_source,
         "by_phase": by_phase,
         "hotspots": hotspots,
+        "by_size": by_size,
+        "by_direction": by_direction,
+        "checks": _conservation_checks(by_tag, by_component, by_source, by_size, by_direction, total_penetrations),
         "environment": assessment.environment,
         "settings": {
             "directions": settings.directions,
@@ -172,6 +192,35 @@ def build_summary(assessment):
     return summary
 
 
+def _verdict(pnp, required):
+    """Met or not, with the margin in PNP and in allowed expected penetrations."""
+    return {
+        "pnp": required,
+        "met": bool(pnp >= required),
+        "margin": float(pnp - required),
+        "allowed_expected_penetrations": float(-np.log(required)),
+    }
+
+
+def _conservation_checks(by_tag, by_component, by_source, by_size, by_direction, total):
+    """Sums of the breakdowns against the total of critical penetrations (relative differences)."""
+
+    def relative(value):
+        return abs(value - total) / total if total > 0 else abs(value)
+
+    critical_sum = [e["expected_penetrations"] for e in by_tag.values() if e["role"] == "critical"]
+    checks = {
+        "by_tag": relative(sum(critical_sum)),
+        "by_component": relative(sum(e["expected_penetrations"] for e in by_component.values() if e["role"] == "critical")),
+        "by_source": relative(sum(e["expected_penetrations"] for e in by_source.values())),
+        "by_size": relative(sum(sum(b["expected_penetrations"]) for b in by_size.values())),
+        "by_direction": relative(sum(sum(b["expected_penetrations"]) for b in by_direction.values())),
+    }
+    tolerance = 1e-9
+    failed = [name for name, value in checks.items() if value > tolerance]
+    return {"relative_difference": checks, "tolerance": tolerance, "passed": not failed, "failed": failed}
+
+
 def format_summary(summary, out_dir=None):
     """A plain-text table of the summary for the terminal."""
     lines = []
@@ -184,6 +233,19 @@ def format_summary(summary, out_dir=None):
         f"{summary['duration_years']:.2f} years in {len(summary['by_phase'])} phase(s)"
     )
     add("")
+    requirement = summary.get("requirement")
+    if requirement is not None:
+        verdict = "MET" if requirement["met"] else "NOT MET"
+        add(
+            f"  Requirement PNP ≥ {requirement['pnp']:.5f}: {verdict} "
+            f"(margin {requirement['margin']:+.5f}; allowed N ≤ {requirement['allowed_expected_penetrations']:.4g})"
+        )
+    for name, entry in summary["by_component"].items():
+        if "requirement" in entry:
+            verdict = "met" if entry["requirement"]["met"] else "NOT MET"
+            add(f"  Component {name}: PNP {entry['pnp']:.5f} against ≥ {entry['requirement']['pnp']:.5f}: {verdict}")
+    if not summary["checks"]["passed"]:
+        add(f"  WARNING: breakdowns do not add up to the total ({', '.join(summary['checks']['failed'])}); please report this")
     add(f"  Probability of no penetration  PNP = {summary['pnp']:.5f}   (critical components)")
     add(f"  Expected penetrations          N   = {summary['expected_penetrations']:.4g}")
     add(f"  Expected impacts ≥ {summary['impact_diameter_cm'] * 10:g} mm         = {summary['expected_impacts']:.4g}")

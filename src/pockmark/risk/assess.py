@@ -15,7 +15,15 @@ from pockmark import environment
 from pockmark.ballistics.shields import make_shield
 from pockmark.errors import ConfigError, InputError, MeshError
 from pockmark.io.environment_table import load_environment_table
-from pockmark.risk.impacts import interpolate_angles, penetration_table
+from pockmark.risk.impacts import (
+    ANGLE_NODES,
+    SIZE_EDGES,
+    accumulate_angle_exposure,
+    angle_positions,
+    interpolate_at,
+    penetration_table,
+    penetration_table_by_size,
+)
 from pockmark.risk.vehicle import build_vehicle
 from pockmark.visibility import VisibilityEngine
 
@@ -33,6 +41,8 @@ class SourceResult:
     open_exposure: np.ndarray  # (m,) Σ_j w_j max(0, n·u_j) [unitless]
     visible_exposure: np.ndarray  # (m,) the same with the visible fraction
     penetration_flux: np.ndarray  # (m,) [m⁻² yr⁻¹]
+    angle_exposure: list  # per tag: (nd, na) visible exposure × area at the angle nodes [m²]
+    tables: list  # per tag: (nd, na) penetration_table [m⁻² yr⁻¹]
 
 
 @dataclass
@@ -47,6 +57,7 @@ class Assessment:
     by_phase: list  # per phase: {"name", "duration_years", "by_source": {...}}
     environment: dict  # per phase and source: model parameters
     sources: tuple  # source names in the order they first appear
+    breakdowns: dict  # per source: critical penetrations by particle size and by direction
     timings: dict = field(default_factory=dict)
 
     @property
@@ -136,6 +147,9 @@ def integrate_source(engine, mesh, shields, flux, impact_diameter, threads, prog
     open_exposure = np.zeros(m)
     visible_exposure = np.zeros(m)
     penetration_flux = np.zeros(m)
+    areas = mesh.face_areas
+    angle_exposure = [np.zeros((len(directions), len(ANGLE_NODES))) for _ in mesh.tag_names]
+    # only faces of this tag contribute to its histogram
     chunk = max(1, CHUNK_ELEMENTS // m)
     for start in range(0, len(directions), chunk):
         stop = min(start + chunk, len(directions))
@@ -149,8 +163,12 @@ def integrate_source(engine, mesh, shields, flux, impact_diameter, threads, prog
             if len(faces) == 0:
                 continue
             rows = tables[tag_index][start:stop]
-            values = interpolate_angles(rows, cosines[faces])
+            lower, fraction = angle_positions(cosines[faces])
+            values = interpolate_at(rows, lower, fraction)
             penetration_flux[faces] += np.einsum("fc,fc->f", exposed[faces], values)
+            accumulate_angle_exposure(
+                angle_exposure[tag_index][start:stop], lower, fraction, exposed[faces] * areas[faces, None]
+            )
         if progress is not None:
             progress(stop - start)
     return SourceResult(
@@ -158,6 +176,8 @@ def integrate_source(engine, mesh, shields, flux, impact_diameter, threads, prog
         open_exposure=open_exposure,
         visible_exposure=visible_exposure,
         penetration_flux=penetration_flux,
+        angle_exposure=angle_exposure,
+        tables=tables,
     )
 
 
@@ -216,6 +236,8 @@ def assess(case, progress=None):
     m = mesh.n_faces
     areas = mesh.face_areas
     critical = np.array([c.role == "critical" for c in vehicle.components])[vehicle.face_components]
+    critical_tags = [t for t in range(len(mesh.tag_names)) if critical[mesh.face_tags == t].all()]
+    breakdowns = {}
     face = {}
     by_phase = []
     environment_parameters = {}
@@ -233,6 +255,18 @@ def assess(case, progress=None):
                 impacts += areas * phase.duration * result.impact_flux * result.visible_exposure
                 penetrations += areas * phase.duration * result.penetration_flux
                 open_impacts += areas * phase.duration * result.impact_flux * result.open_exposure
+                by_direction = sum(
+                    ((result.angle_exposure[t] * result.tables[t]).sum(axis=1) for t in critical_tags),
+                    np.zeros(len(flux.directions)),
+                ) * phase.duration
+                by_size = sum((
+                    np.einsum("ja,bja->b", result.angle_exposure[t], penetration_table_by_size(shields[mesh.tag_names[t]], flux))
+                    for t in critical_tags
+                ), np.zeros(len(SIZE_EDGES) - 1)) * phase.duration
+                breakdown = breakdowns.setdefault(source, {"directions": [], "direction_penetrations": [], "size": 0.0})
+                breakdown["directions"].append(flux.directions)
+                breakdown["direction_penetrations"].append(by_direction)
+                breakdown["size"] = breakdown["size"] + by_size
                 environment_parameters.setdefault(phase.name, {}).setdefault(source, []).append(
                     {
                         "model": flux.model,
@@ -272,5 +306,14 @@ def assess(case, progress=None):
         by_phase=by_phase,
         environment=environment_parameters,
         sources=tuple(sources),
+        breakdowns={
+            source: {
+                "size_edges_cm": list(SIZE_EDGES),
+                "size_penetrations": b["size"],
+                "directions": np.vstack(b["directions"]),
+                "direction_penetrations": np.concatenate(b["direction_penetrations"]),
+            }
+            for source, b in breakdowns.items()
+        },
         timings=timings,
     )

@@ -154,3 +154,46 @@ def test_retag_needs_a_criterion(folder):
     text = make_case_text() + '\n[[retag]]\ntag = "x"\n'
     with pytest.raises(ConfigError, match=r"retag\.0: select faces with at least one of"):
         load_case(write(folder, text))
+
+
+def test_variant_extends_a_baseline(folder):
+    write(folder, make_case_text())
+    sub = folder / "variants"
+    sub.mkdir()
+    variant = sub / "heavy.toml"
+    variant.write_text(
+        'extends = "../case.toml"\ntitle = "heavier hull"\n\n[requirement]\npnp = 0.95\n\n'
+        "[shields.hull]\nrear_wall_thickness = 0.5\n\n"
+        '[[retag]]\ntag = "panel"\nbox = [[0, 0, 0], [1, 1, 1]]\n',
+        encoding="utf-8",
+    )
+    case = load_case(variant)
+    # Paths of the base resolve against the base's folder; tables merge key by key.
+    assert case.mesh_paths == ((folder / "vehicle.obj").resolve(),)
+    assert case.shields["hull"]["rear_wall_thickness"] == 0.5
+    assert case.shields["hull"]["bumper_thickness"] == 0.1
+    assert case.title == "heavier hull" and case.pnp_requirement == 0.95
+    assert len(case.retags) == 1 and case.phases[0].perigee_altitude == 400.0
+    assert [p for p, _ in case.sources] == [variant.resolve(), (folder / "case.toml").resolve()]
+    # An error in a key the base states is located in the base file.
+    assert case.where("phases", 0, "altitude").startswith(f"{(folder / 'case.toml').resolve()}:")
+    assert case.where("shields", "hull", "rear_wall_thickness") == f"{variant.resolve()}:8"
+
+
+def test_extends_loops_and_missing_bases(folder):
+    a, b = folder / "a.toml", folder / "b.toml"
+    a.write_text('extends = "b.toml"\n', encoding="utf-8")
+    b.write_text('extends = "a.toml"\n', encoding="utf-8")
+    with pytest.raises(ConfigError, match="extends itself"):
+        load_case(a)
+    a.write_text('extends = "nowhere.toml"\n', encoding="utf-8")
+    with pytest.raises(ConfigError, match=r"a.toml:1: extends: .*does not exist"):
+        load_case(a)
+
+
+def test_requirements(folder):
+    text = make_case_text() + "\n[requirement]\npnp = 0.99\n\n[components.shell]\ntags = [\"hull\"]\npnp_requirement = 0.995\n"
+    case = load_case(write(folder, text))
+    assert case.pnp_requirement == 0.99 and case.components[0].pnp_requirement == 0.995
+    with pytest.raises(ConfigError, match=r"requirement\.pnp: must be a probability"):
+        load_case(write(folder, make_case_text() + "\n[requirement]\npnp = 1.5\n"))
