@@ -109,3 +109,17 @@ def test_demo_case_end_to_end(tmp_path):
     assert summary["by_source"]["meteoroid"]["expected_impacts"] > 0
     faces = pyvista.read(out / "faces.vtp")
     assert faces.n_cells == summary["faces"]
+
+
+@pytest.mark.slow
+def test_crew_module_baseline_and_enhanced_variant(tmp_path):
+    """The second demo: the enhanced variant meets the requirement the baseline misses."""
+    base, enhanced = tmp_path / "base", tmp_path / "enhanced"
+    assert run("run", ROOT / "models/crew_module/baseline.toml", "--out", base, "-q").exit_code == 0
+    assert run("run", ROOT / "models/crew_module/enhanced.toml", "--out", enhanced, "-q").exit_code == 0
+    a = json.loads((base / "summary.json").read_text())
+    b = json.loads((enhanced / "summary.json").read_text())
+    assert not a["requirement"]["met"] and b["requirement"]["met"]
+    assert b["checks"]["passed"] and a["checks"]["passed"]
+    result = run("compare", base, enhanced, "--out", tmp_path / "cmp")
+    assert result.exit_code == 0 and "NOT MET" in result.output
