@@ -10,6 +10,7 @@ import click  # noqa: E402
 
 from pockmark import __version__  # noqa: E402
 from pockmark.cli.check import check  # noqa: E402
+from pockmark.cli.compare import compare  # noqa: E402
 from pockmark.cli.environment import environment  # noqa: E402
 from pockmark.cli.run import run  # noqa: E402
 
@@ -28,6 +29,7 @@ def cli():
 cli.add_command(run)
 cli.add_command(check)
 cli.add_command(environment)
+cli.add_command(compare)
 
 if __name__ == "__main__":
     cli()
