@@ -18,9 +18,14 @@ import click
     default=None,
     help="Threads for ray shadowing [0 = all cores; default: the case's setting].",
 )
+@click.option(
+    "--convergence",
+    is_flag=True,
+    help="Also run at double the direction resolution and sampling, and report the change.",
+)
 @click.option("-v", "--verbose", count=True, help="More log output on stderr (repeatable).")
 @click.option("-q", "--quiet", count=True, help="Less output: no progress bar, warnings only.")
-def run(case_file, out_dir, overwrite, threads, verbose, quiet):
+def run(case_file, out_dir, overwrite, threads, convergence, verbose, quiet):
     """Analyse CASE_FILE and write summary.json, faces.csv and faces.vtp to --out.
 
     \b
@@ -44,7 +49,9 @@ def run(case_file, out_dir, overwrite, threads, verbose, quiet):
         with warnings.catch_warnings():
             warnings.showwarning = show_warning
             warnings.simplefilter("default")
-            summary = _run(case_file, out_dir, overwrite, threads, ProgressBar("ray shadowing", enabled=quiet == 0))
+            summary = _run(
+                case_file, out_dir, overwrite, threads, convergence, lambda label: ProgressBar(label, enabled=quiet == 0)
+            )
     except PockmarkError as error:
         if verbose >= 2:
             raise
@@ -58,7 +65,7 @@ def run(case_file, out_dir, overwrite, threads, verbose, quiet):
     sys.stdout.flush()
 
 
-def _run(case_file, out_dir, overwrite, threads, progress):
+def _run(case_file, out_dir, overwrite, threads, convergence, progress_bar):
     import dataclasses
 
     from pockmark.io.config import load_case
@@ -66,12 +73,22 @@ def _run(case_file, out_dir, overwrite, threads, progress):
     from pockmark.report.files import write_run
     from pockmark.report.summary import build_summary
     from pockmark.risk.assess import assess
+    from pockmark.risk.uncertainty import discretisation_estimate, environment_band, resolution_variant
 
     case = load_case(case_file)
     if threads is not None:
         case = dataclasses.replace(case, analysis=dataclasses.replace(case.analysis, threads=threads))
     prepare_output_dir(out_dir, case.input_files, overwrite=overwrite)
-    assessment = assess(case, progress=progress)
+    assessment = assess(case, progress=progress_bar("ray shadowing"))
     summary = build_summary(assessment)
+    penetrations = summary["expected_penetrations"]
+    if case.resolution_check == "coarse":
+        coarse = build_summary(assess(resolution_variant(case, 0.5), progress=progress_bar("coarse rerun")))
+        summary["discretisation"] = discretisation_estimate(penetrations, coarse["expected_penetrations"], 0.5)
+    if convergence:
+        fine = build_summary(assess(resolution_variant(case, 2.0), progress=progress_bar("convergence run")))
+        summary["convergence"] = discretisation_estimate(penetrations, fine["expected_penetrations"], 2.0)
+    by_source = {source: entry["expected_penetrations"] for source, entry in summary["by_source"].items()}
+    summary["environment_band"] = environment_band(by_source, case.uncertainty_factors or {})
     write_run(assessment, summary, out_dir)
     return summary

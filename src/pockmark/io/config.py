@@ -19,7 +19,7 @@ from pockmark.errors import ConfigError
 from pockmark.geometry.frames import ATTITUDE_AXES
 from pockmark.geometry.units import LENGTH_UNITS
 
-_SECTIONS = {"title", "extends", "requirement", "vehicle", "shields", "phases", "environment", "analysis", "components", "thin", "panels", "retag"}
+_SECTIONS = {"title", "extends", "requirement", "uncertainty", "vehicle", "shields", "phases", "environment", "analysis", "components", "thin", "panels", "retag"}
 
 
 @dataclass(frozen=True)
@@ -132,6 +132,8 @@ class Case:
     analysis: AnalysisSettings
     environment_tables: tuple = ()  # paths of user environment tables
     pnp_requirement: float | None = None  # required PNP of the vehicle (critical components)
+    uncertainty_factors: dict = None  # source -> factor ≥ 1 on its flux, for the PNP band
+    resolution_check: str = "coarse"  # "coarse": rerun at half resolution to estimate the error
     components: tuple = ()
     thin: dict = None  # front tag -> back tag of open sheets exposed on both sides
     panels: tuple = ()
@@ -690,6 +692,14 @@ def load_case(path):
         reader = _Reader(path, sources, requirement, ("requirement",))
         pnp_requirement = reader.get("pnp", float, check=_probability)
         reader.finish()
+    uncertainty = _table(top, "uncertainty", required=False) or {}
+    reader = _Reader(path, sources, uncertainty, ("uncertainty",))
+    resolution_check = reader.get("resolution_check", str, default="coarse", check=_choice(("coarse", "none")))
+    factors = {}
+    for key in uncertainty:
+        if key != "resolution_check":
+            factors[key] = reader.get(key, float, check=lambda v: None if v >= 1 else "must be a factor >= 1 on the source's flux")
+    reader.finish()
     components = _load_components(top, path, sources)
     thin = _load_thin(top, path, sources)
     panels = _load_panels(top, path, sources, length_unit)
@@ -716,4 +726,6 @@ def load_case(path):
         analysis=analysis,
         environment_tables=environment_tables,
         pnp_requirement=pnp_requirement,
+        uncertainty_factors=factors,
+        resolution_check=resolution_check,
     )

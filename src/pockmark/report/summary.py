@@ -248,6 +248,16 @@ def format_summary(summary, out_dir=None):
         add(f"  WARNING: breakdowns do not add up to the total ({', '.join(summary['checks']['failed'])}); please report this")
     add(f"  Probability of no penetration  PNP = {summary['pnp']:.5f}   (critical components)")
     add(f"  Expected penetrations          N   = {summary['expected_penetrations']:.4g}")
+    for key, label in (("discretisation", "resolution"), ("convergence", "convergence")):
+        if key in summary:
+            entry = summary[key]
+            low, high = entry["pnp_range"]
+            add(f"    {label} error ≈ {entry['relative_error']:.1%} of N ({entry['method']}): PNP {low:.5f}–{high:.5f}")
+    band = summary.get("environment_band")
+    if band and any(f != 1.0 for f in band["factors"].values()):
+        low, high = band["pnp_range"]
+        factors = ", ".join(f"{s} ×/÷{f:g}" for s, f in band["factors"].items())
+        add(f"    environment band ({factors}): PNP {low:.5f}–{high:.5f}")
     add(f"  Expected impacts ≥ {summary['impact_diameter_cm'] * 10:g} mm         = {summary['expected_impacts']:.4g}")
     add("")
     header = f"  {'source':<12}{'impacts':>12}{'penetrations':>15}{'PNP':>10}"
