@@ -57,7 +57,7 @@ SHATTER_RTOL = 1e-3
 
 def _table_b_cases():
     for sigma_ksi, density, angle, values in TABLE_B:
-        for speed, (expected, regime) in zip(SPEEDS, values):
+        for speed, (expected, regime) in zip(SPEEDS, values, strict=True):
             rtol = HALF_UNIT / expected
             if regime == "INT":
                 rtol = max(rtol, SHATTER_RTOL)

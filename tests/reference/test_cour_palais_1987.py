@@ -53,7 +53,7 @@ HALF_UNIT = 0.5e-4 * 1.02
 def _cases(table, material):
     for thickness, criterion, values in table:
         conditions = [(v, a) for a in ANGLES for v in SPEEDS]
-        for (speed, angle), expected in zip(conditions, values):
+        for (speed, angle), expected in zip(conditions, values, strict=True):
             yield pytest.param(
                 thickness, criterion, speed, angle, expected, material,
                 id=f"t{thickness}-{criterion}-{speed:g}kms-{angle:g}deg",

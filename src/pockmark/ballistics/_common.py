@@ -1,8 +1,15 @@
-"""Validation and masking of impact conditions shared by every ballistic-limit equation."""
+"""Validation and masking of impact conditions shared by every ballistic-limit equation.
+
+Also: :class:`ValidityRange`, the stated range of an equation in one impact variable, and the
+mask of impacts outside a set of them.
+"""
+
+from typing import NamedTuple
 
 import numpy as np
 
 from pockmark.errors import InputError
+
 
 def _first_bad(name, values, bad, valid):
     """Raise InputError for the first element of ``values`` flagged in ``bad``."""
@@ -53,3 +60,61 @@ def _finish(critical, velocity, angle):
     """Set d_c = inf where there is no impact and return a float64 ndarray."""
     out = np.where(_no_impact(velocity, angle), np.inf, critical)
     return np.asarray(out, dtype=np.float64)
+
+
+class ValidityRange(NamedTuple):
+    """The fitted or tested range of an equation in one impact variable.
+
+    Attributes
+    ----------
+    parameter : str
+        ``"impact_velocity"`` [km s⁻¹], ``"normal_velocity"`` (V cos θ) [km s⁻¹],
+        ``"impact_angle"`` [°] or ``"projectile_density"`` [g cm⁻³].
+    minimum, maximum : float
+        Closed bounds in the unit of the parameter; ``-inf``/``inf`` where there is none.
+    unit : str
+        Unit of the bounds.
+    note : str
+        Where the range comes from, with its provenance.
+    """
+
+    parameter: str
+    minimum: float
+    maximum: float
+    unit: str
+    note: str
+
+    def describe(self):
+        """One phrase: ``"impact_velocity in [0, 8] km s⁻¹ (note)"``."""
+        if self.minimum == -np.inf or (self.minimum <= 0 and self.parameter != "impact_angle"):
+            bounds = f"≤ {self.maximum:g}"
+        elif self.maximum == np.inf:
+            bounds = f"≥ {self.minimum:g}"
+        else:
+            bounds = f"in [{self.minimum:g}, {self.maximum:g}]"
+        unit = "°" if self.unit == "°" else f" {self.unit}"
+        return f"{self.parameter} {bounds}{unit} ({self.note})"
+
+
+def _outside(ranges, impact_velocity, impact_angle, projectile_density):
+    """Boolean mask, broadcast shape: an impact whose conditions leave any of ``ranges``.
+
+    No-impact conditions (speed ≤ 0 or angle ≥ 90°) and NaN conditions are never flagged.
+    """
+    velocity, angle, density = _impact_conditions(
+        impact_velocity, impact_angle, projectile_density
+    )
+    velocity, angle, density = np.broadcast_arrays(velocity, angle, density)
+    with np.errstate(invalid="ignore"):
+        values = {
+            "impact_velocity": velocity,
+            "normal_velocity": velocity * np.cos(np.radians(angle)),
+            "impact_angle": angle,
+            "projectile_density": density,
+        }
+        flagged = np.zeros(velocity.shape, dtype=bool)
+        for limits in ranges:
+            value = values[limits.parameter]
+            flagged |= (value < limits.minimum) | (value > limits.maximum)
+        valid = ~(np.isnan(velocity) | np.isnan(angle) | np.isnan(density))
+        return flagged & valid & ~_no_impact(velocity, angle)

@@ -132,9 +132,11 @@ def cour_palais_1987(
     hypervelocity; test data reach about 8 km s⁻¹ and higher speeds are an extrapolation;
     used for other metals through BH, :math:`\rho_t` and C; spherical projectiles only.
     Outside this range the function evaluates the same formula without clipping and
-    without warning (this version emits no :class:`~pockmark.errors.ModelRangeWarning`).
-    No obliquity cap is applied: at grazing angles below 90° the diameter grows without
-    bound.
+    without warning; :meth:`pockmark.ballistics.Shield.out_of_range` flags impacts above
+    8 km s⁻¹ so that a run can report the flux that fell there. No obliquity cap is
+    applied here (the default of shields built with
+    :func:`~pockmark.ballistics.make_shield` too; their ``angle_cap`` key sets one): at
+    grazing angles below 90° the diameter grows without bound.
 
     **Choice of C.** Results depend on which sound speed is used: 6.3 km s⁻¹ (longitudinal)
     instead of 5.1 km s⁻¹ (bar) raises :math:`d_c` by 14 %.
@@ -142,6 +144,8 @@ def cour_palais_1987(
     See Also
     --------
     pockmark.ballistics.christiansen_1993 : Whipple shield (bumper, gap, rear wall).
+    pockmark.ballistics.christiansen_1995 : Stuffed Whipple shield.
+    pockmark.ballistics.sandwich_summed_face_sheets : Sandwich panel bound built on this.
     pockmark.ballistics.threshold_diameter : Constant critical diameter (not a model).
 
     References

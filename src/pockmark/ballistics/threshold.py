@@ -55,6 +55,7 @@ def threshold_diameter(impact_velocity, impact_angle, projectile_density, diamet
 
     See Also
     --------
+    pockmark.ballistics.tabulated_diameter : User table over speed and angle.
     pockmark.ballistics.cour_palais_1987 : Single metallic wall.
     pockmark.ballistics.christiansen_1993 : Whipple shield.
 

@@ -154,13 +154,18 @@ def christiansen_1993(
     branch above that is an extrapolation (hydrocode-supported). Thin bumpers
     (:math:`t_b/d` well below 0.1–0.2) make the hypervelocity branch non-conservative, and
     the bumper term was fitted for aluminium bumpers. Outside this range the function
-    evaluates the same formulas without clipping and without warning (this version emits no
-    :class:`~pockmark.errors.ModelRangeWarning`). No obliquity cap is applied: at grazing
-    angles below 90° the ballistic branch grows without bound.
+    evaluates the same formulas without clipping and without warning;
+    :meth:`pockmark.ballistics.Shield.out_of_range` flags impacts above 8 km s⁻¹ (the
+    bumper-to-diameter and spacing-to-diameter conditions are not checked). No obliquity cap
+    is applied here (the default of shields built with
+    :func:`~pockmark.ballistics.make_shield` too; their ``angle_cap`` key sets one): at
+    grazing angles below 90° the ballistic branch grows without bound.
 
     See Also
     --------
     pockmark.ballistics.cour_palais_1987 : Single metallic wall.
+    pockmark.ballistics.christiansen_1995 : Stuffed Whipple shield (fabric blanket in the gap).
+    pockmark.ballistics.sandwich_whipple_approximation : Sandwich panel taken as a Whipple.
     pockmark.ballistics.threshold_diameter : Constant critical diameter (not a model).
 
     References

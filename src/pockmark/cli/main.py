@@ -12,6 +12,7 @@ from pockmark import __version__  # noqa: E402
 from pockmark.cli.check import check  # noqa: E402
 from pockmark.cli.compare import compare  # noqa: E402
 from pockmark.cli.environment import environment  # noqa: E402
+from pockmark.cli.limits import limits  # noqa: E402
 from pockmark.cli.run import run  # noqa: E402
 
 
@@ -30,6 +31,7 @@ cli.add_command(run)
 cli.add_command(check)
 cli.add_command(environment)
 cli.add_command(compare)
+cli.add_command(limits)
 
 if __name__ == "__main__":
     cli()

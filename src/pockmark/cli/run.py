@@ -68,6 +68,7 @@ def run(case_file, out_dir, overwrite, threads, convergence, verbose, quiet):
 def _run(case_file, out_dir, overwrite, threads, convergence, progress_bar):
     import dataclasses
 
+    from pockmark.errors import ModelRangeWarning
     from pockmark.io.config import load_case
     from pockmark.io.results import prepare_output_dir
     from pockmark.report.files import write_run
@@ -82,12 +83,15 @@ def _run(case_file, out_dir, overwrite, threads, convergence, progress_bar):
     assessment = assess(case, progress=progress_bar("ray shadowing"))
     summary = build_summary(assessment)
     penetrations = summary["expected_penetrations"]
-    if case.resolution_check == "coarse":
-        coarse = build_summary(assess(resolution_variant(case, 0.5), progress=progress_bar("coarse rerun")))
-        summary["discretisation"] = discretisation_estimate(penetrations, coarse["expected_penetrations"], 0.5)
-    if convergence:
-        fine = build_summary(assess(resolution_variant(case, 2.0), progress=progress_bar("convergence run")))
-        summary["convergence"] = discretisation_estimate(penetrations, fine["expected_penetrations"], 2.0)
+    # The reruns repeat the main run's range warnings; those were shown once already.
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ModelRangeWarning)
+        if case.resolution_check == "coarse":
+            coarse = build_summary(assess(resolution_variant(case, 0.5), progress=progress_bar("coarse rerun")))
+            summary["discretisation"] = discretisation_estimate(penetrations, coarse["expected_penetrations"], 0.5)
+        if convergence:
+            fine = build_summary(assess(resolution_variant(case, 2.0), progress=progress_bar("convergence run")))
+            summary["convergence"] = discretisation_estimate(penetrations, fine["expected_penetrations"], 2.0)
     by_source = {source: entry["expected_penetrations"] for source, entry in summary["by_source"].items()}
     summary["environment_band"] = environment_band(by_source, case.uncertainty_factors or {})
     write_run(assessment, summary, out_dir)

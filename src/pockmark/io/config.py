@@ -19,7 +19,7 @@ from pockmark.errors import ConfigError
 from pockmark.geometry.frames import ATTITUDE_AXES
 from pockmark.geometry.units import LENGTH_UNITS
 
-_SECTIONS = {"title", "extends", "requirement", "uncertainty", "vehicle", "shields", "phases", "environment", "analysis", "components", "thin", "panels", "retag"}
+_SECTIONS = {"title", "extends", "requirement", "uncertainty", "materials", "vehicle", "shields", "phases", "environment", "analysis", "components", "thin", "panels", "retag"}
 
 
 @dataclass(frozen=True)
@@ -133,6 +133,7 @@ class Case:
     environment_tables: tuple = ()  # paths of user environment tables
     pnp_requirement: float | None = None  # required PNP of the vehicle (critical components)
     uncertainty_factors: dict = None  # source -> factor ≥ 1 on its flux, for the PNP band
+    materials: dict = None  # user materials: name -> raw property table
     resolution_check: str = "coarse"  # "coarse": rerun at half resolution to estimate the error
     components: tuple = ()
     thin: dict = None  # front tag -> back tag of open sheets exposed on both sides
@@ -569,6 +570,11 @@ def load_case(path):
     shields_table = _table(top, "shields")
     if not shields_table:
         top.fail("shields", "define at least one shield: [shields.TAG] with an equation")
+    materials = {}
+    for name, properties in (_table(top, "materials", required=False) or {}).items():
+        if not isinstance(properties, dict):
+            top.fail("materials", f"materials.{name} must be a table ([materials.{name}]) of properties")
+        materials[name] = dict(properties)
     shields = {}
     for tag, definition in shields_table.items():
         if not isinstance(definition, dict):
@@ -727,5 +733,6 @@ def load_case(path):
         environment_tables=environment_tables,
         pnp_requirement=pnp_requirement,
         uncertainty_factors=factors,
+        materials=materials,
         resolution_check=resolution_check,
     )

@@ -50,6 +50,10 @@ def atomic_path(path):
     path = Path(path)
     handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=path.suffix, dir=path.parent)
     os.close(handle)
+    # mkstemp makes the file private; give the result the permissions a plain write would.
+    umask = os.umask(0)
+    os.umask(umask)
+    os.chmod(temporary, 0o666 & ~umask)
     try:
         yield Path(temporary)
         os.replace(temporary, path)

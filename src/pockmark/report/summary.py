@@ -72,11 +72,15 @@ def build_summary(assessment):
     for index, (name, values) in enumerate(zip(mesh.tag_names, zip(*group_totals(mesh.face_tags, len(mesh.tag_names))))):
         entry = _totals(*values)
         shield = assessment.shields[name]
+        outside = float(assessment.outside_validity[index])
         entry.update(
             role=tag_role[index],
             faces=int(np.count_nonzero(mesh.face_tags == index)),
             equation=shield.equation,
             areal_density_kg_m2=float(shield.areal_density),
+            penetrations_outside_validity=outside,
+            share_outside_validity=outside / entry["expected_penetrations"] if entry["expected_penetrations"] > 0 else 0.0,
+            validity=shield.validity,
         )
         by_tag[name] = entry
     by_component = {}

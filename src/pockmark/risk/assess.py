@@ -7,13 +7,14 @@ order) and per-phase totals; :mod:`pockmark.report.summary` turns it into tables
 
 import logging
 import time
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from pockmark import environment
-from pockmark.ballistics.shields import make_shield
-from pockmark.errors import ConfigError, InputError, MeshError
+from pockmark.ballistics import make_material, make_shield
+from pockmark.errors import ConfigError, InputError, MeshError, ModelRangeWarning
 from pockmark.io.environment_table import load_environment_table
 from pockmark.risk.impacts import (
     ANGLE_NODES,
@@ -21,6 +22,7 @@ from pockmark.risk.impacts import (
     accumulate_angle_exposure,
     angle_positions,
     interpolate_at,
+    out_of_range_table,
     penetration_table,
     penetration_table_by_size,
 )
@@ -58,6 +60,7 @@ class Assessment:
     environment: dict  # per phase and source: model parameters
     sources: tuple  # source names in the order they first appear
     breakdowns: dict  # per source: critical penetrations by particle size and by direction
+    outside_validity: np.ndarray  # per tag: expected penetrations from impacts outside the equation's range
     timings: dict = field(default_factory=dict)
 
     @property
@@ -67,10 +70,16 @@ class Assessment:
 
 def build_shields(case, mesh):
     """Check the case's shield definitions against the ballistic library and the mesh tags."""
+    materials = {}
+    for name, properties in (case.materials or {}).items():
+        try:
+            materials[name] = make_material(name, properties)
+        except InputError as error:
+            raise ConfigError(f"{case.where('materials', name)}: {error}") from None
     shields = {}
     for tag, definition in case.shields.items():
         try:
-            shields[tag] = make_shield(tag, definition)
+            shields[tag] = make_shield(tag, definition, materials=materials)
         except InputError as error:
             raise ConfigError(f"{case.where('shields', tag)}: {error}") from None
     counts = np.bincount(mesh.face_tags, minlength=len(mesh.tag_names))
@@ -238,6 +247,7 @@ def assess(case, progress=None):
     critical = np.array([c.role == "critical" for c in vehicle.components])[vehicle.face_components]
     critical_tags = [t for t in range(len(mesh.tag_names)) if critical[mesh.face_tags == t].all()]
     breakdowns = {}
+    outside_validity = np.zeros(len(mesh.tag_names))
     face = {}
     by_phase = []
     environment_parameters = {}
@@ -263,6 +273,10 @@ def assess(case, progress=None):
                     np.einsum("ja,bja->b", result.angle_exposure[t], penetration_table_by_size(shields[mesh.tag_names[t]], flux))
                     for t in critical_tags
                 ), np.zeros(len(SIZE_EDGES) - 1)) * phase.duration
+                for t in range(len(mesh.tag_names)):
+                    if result.angle_exposure[t].any():
+                        outside = (result.angle_exposure[t] * out_of_range_table(shields[mesh.tag_names[t]], flux)).sum()
+                        outside_validity[t] += outside * phase.duration
                 breakdown = breakdowns.setdefault(source, {"directions": [], "direction_penetrations": [], "size": 0.0})
                 breakdown["directions"].append(flux.directions)
                 breakdown["direction_penetrations"].append(by_direction)
@@ -297,6 +311,16 @@ def assess(case, progress=None):
             open_impacts > 0, 1.0 - face["expected_impacts"] / np.where(open_impacts > 0, open_impacts, 1.0), 0.0
         )
     face["shadowed_fraction"] = np.clip(face["shadowed_fraction"], 0.0, 1.0)
+    tag_penetrations = np.bincount(mesh.face_tags, weights=face["expected_penetrations"], minlength=len(mesh.tag_names))
+    for t, name in enumerate(mesh.tag_names):
+        if tag_penetrations[t] > 0 and outside_validity[t] > 0.01 * tag_penetrations[t]:
+            share = outside_validity[t] / tag_penetrations[t]
+            warnings.warn(
+                f"shield {name!r}: {share:.0%} of its expected penetrations come from impacts outside "
+                f"the range of {shields[name].equation} ({shields[name].validity}); those are extrapolated",
+                ModelRangeWarning,
+                stacklevel=2,
+            )
     return Assessment(
         case=case,
         vehicle=vehicle,
@@ -306,6 +330,7 @@ def assess(case, progress=None):
         by_phase=by_phase,
         environment=environment_parameters,
         sources=tuple(sources),
+        outside_validity=outside_validity,
         breakdowns={
             source: {
                 "size_edges_cm": list(SIZE_EDGES),

@@ -57,6 +57,19 @@ def penetration_table(shield, flux):
     return np.asarray(flux.weights, dtype=np.float64) @ penetrating.T
 
 
+def out_of_range_table(shield, flux):
+    """The part of :func:`penetration_table` from impacts outside the equation's stated range."""
+    speeds = np.asarray(flux.speeds, dtype=np.float64)[None, :]
+    angles = ANGLE_NODES[:, None]
+    critical = np.asarray(shield.critical_diameter(speeds, angles, flux.projectile_density), dtype=np.float64)
+    critical = np.broadcast_to(critical, (len(ANGLE_NODES), speeds.shape[1]))
+    outside = np.broadcast_to(shield.out_of_range(speeds, angles, flux.projectile_density), critical.shape)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ModelRangeWarning)
+        penetrating = np.asarray(flux.cumulative_flux(critical), dtype=np.float64)
+    return np.asarray(flux.weights, dtype=np.float64) @ (penetrating * outside).T
+
+
 def angle_positions(cosines):
     """Lower grid node and interpolation fraction of the impact angles given by ``cosines``."""
     angles = np.degrees(np.arccos(np.clip(cosines, 0.0, 1.0)))
