@@ -128,6 +128,13 @@ def build_summary(assessment):
         source: {"directions": b["directions"].tolist(), "expected_penetrations": b["direction_penetrations"].tolist()}
         for source, b in assessment.breakdowns.items()
     }
+    sectors = {name: 0.0 for name in ("+x", "-x", "+y", "-y", "+z", "-z")}
+    for b in assessment.breakdowns.values():
+        directions = b["directions"]
+        axis = np.argmax(np.abs(directions), axis=1)
+        sign = np.sign(directions[np.arange(len(directions)), axis])
+        for d_axis, d_sign, value in zip(axis, sign, b["direction_penetrations"]):
+            sectors[f"{'+' if d_sign >= 0 else '-'}{'xyz'[d_axis]}"] += float(value)
     critical_penetrations = face["expected_penetrations"] * critical
     total_penetrations = float(critical_penetrations.sum())
     order = np.argsort(-critical_penetrations, kind="stable")[:10]
@@ -167,6 +174,10 @@ def build_summary(assessment):
         "by_phase": by_phase,
         "hotspots": hotspots,
         "by_size": by_size,
+        # Share of the critical penetrations by the body axis nearest to the arrival direction.
+        "by_direction_sector": {
+            name: (value / total_penetrations if total_penetrations > 0 else 0.0) for name, value in sectors.items()
+        },
         "by_direction": by_direction,
         "checks": _conservation_checks(by_tag, by_component, by_source, by_size, by_direction, total_penetrations),
         "environment": assessment.environment,
@@ -281,6 +292,9 @@ def format_summary(summary, out_dir=None):
                 f"{entry['expected_penetrations']:>14.4g}{share}{entry['pnp']:>10.5f}"
             )
         add("")
+    shares = ", ".join(f"{k} {v:.0%}" for k, v in summary["by_direction_sector"].items() if v >= 0.005)
+    add(f"  Arriving from (nearest body axis): {shares}")
+    add("")
     add("  Highest-risk faces:")
     for spot in summary["hotspots"][:5]:
         x, y, z = spot["centroid_m"]
