@@ -41,8 +41,6 @@ def test_small_case_writes_consistent_outputs(shadowed_box_case, tmp_path):
     assert set(summary["by_source"]) == {"debris", "meteoroid"}
     assert sum(e["area_m2"] for e in summary["by_tag"].values()) == pytest.approx(summary["area_m2"])
     assert sum(summary["by_direction_sector"].values()) == pytest.approx(1.0)
-    # Debris arrives only horizontally (the 1991 model's circular-orbit geometry, shared/
-    # reference/environment.md §1.8), so none of the wake (-x) share can be debris.
     assert summary["checks"]["passed"]
     assert len(summary["inputs"]["case"]["sha256"]) == 64 and summary["settings"]["seed"] == 3
 
