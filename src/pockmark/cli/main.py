@@ -13,6 +13,7 @@ from pockmark.cli.check import check  # noqa: E402
 from pockmark.cli.compare import compare  # noqa: E402
 from pockmark.cli.environment import environment  # noqa: E402
 from pockmark.cli.limits import limits  # noqa: E402
+from pockmark.cli.report import report  # noqa: E402
 from pockmark.cli.run import run  # noqa: E402
 
 
@@ -32,6 +33,7 @@ cli.add_command(check)
 cli.add_command(environment)
 cli.add_command(compare)
 cli.add_command(limits)
+cli.add_command(report)
 
 if __name__ == "__main__":
     cli()

@@ -23,10 +23,15 @@ import click
     is_flag=True,
     help="Also run at double the direction resolution and sampling, and report the change.",
 )
+@click.option(
+    "--report/--no-report",
+    default=True,
+    help="Write report.html with pictures and plots (the default) or skip it.",
+)
 @click.option("-v", "--verbose", count=True, help="More log output on stderr (repeatable).")
 @click.option("-q", "--quiet", count=True, help="Less output: no progress bar, warnings only.")
-def run(case_file, out_dir, overwrite, threads, convergence, verbose, quiet):
-    """Analyse CASE_FILE and write summary.json, faces.csv and faces.vtp to --out.
+def run(case_file, out_dir, overwrite, threads, convergence, report, verbose, quiet):
+    """Analyse CASE_FILE and write summary.json, faces.csv, faces.vtp and report.html to --out.
 
     \b
     Examples:
@@ -50,7 +55,7 @@ def run(case_file, out_dir, overwrite, threads, convergence, verbose, quiet):
             warnings.showwarning = show_warning
             warnings.simplefilter("default")
             summary = _run(
-                case_file, out_dir, overwrite, threads, convergence, lambda label: ProgressBar(label, enabled=quiet == 0)
+                case_file, out_dir, overwrite, threads, convergence, report, lambda label: ProgressBar(label, enabled=quiet == 0)
             )
     except PockmarkError as error:
         if verbose >= 2:
@@ -65,7 +70,7 @@ def run(case_file, out_dir, overwrite, threads, convergence, verbose, quiet):
     sys.stdout.flush()
 
 
-def _run(case_file, out_dir, overwrite, threads, convergence, progress_bar):
+def _run(case_file, out_dir, overwrite, threads, convergence, report, progress_bar):
     import dataclasses
 
     from pockmark.errors import ModelRangeWarning
@@ -95,4 +100,8 @@ def _run(case_file, out_dir, overwrite, threads, convergence, progress_bar):
     by_source = {source: entry["expected_penetrations"] for source, entry in summary["by_source"].items()}
     summary["environment_band"] = environment_band(by_source, case.uncertainty_factors or {})
     write_run(assessment, summary, out_dir)
+    if report:
+        from pockmark.report.html import write_report
+
+        write_report(out_dir)
     return summary

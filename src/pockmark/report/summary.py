@@ -304,7 +304,7 @@ def format_summary(summary, out_dir=None):
         )
     if out_dir is not None:
         add("")
-        add(f"  Results in {out_dir}: summary.json, faces.csv, faces.vtp")
+        add(f"  Results in {out_dir}: summary.json, faces.csv, faces.vtp, report.html")
     add("")
     add("  Caution: model estimates, not a certification; see the cautions in summary.json.")
     return "\n".join(lines)
