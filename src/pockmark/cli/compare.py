@@ -14,8 +14,8 @@ def compare(run_a, run_b, out_dir, overwrite):
     """Compare the run in RUN_A with the run in RUN_B (B is the new design).
 
     Prints the change in PNP, by component, shield tag and source, and the shield mass; writes
-    comparison.json and difference.vtp (penetrations per m² of A and B and their difference on
-    B's faces, for faces that both runs share).
+    comparison.json, difference.vtp (penetrations per m² of A and B and their difference on
+    B's faces, for faces that both runs share) and difference_*.png pictures.
 
     \b
     Examples:

@@ -65,6 +65,7 @@ def compare_runs(run_a, run_b, out_dir):
         "title_a": summary_a.get("title"),
         "title_b": summary_b.get("title"),
         "vehicle": _delta(summary_a, summary_b),
+        "change_error": _change_uncertainty(summary_a, summary_b),
         "requirement_a": summary_a.get("requirement"),
         "requirement_b": summary_b.get("requirement"),
     }
@@ -105,8 +106,61 @@ def compare_runs(run_a, run_b, out_dir):
         },
         field_data={"run_a": str(run_a), "run_b": str(run_b)},
     )
+    with np.errstate(invalid="ignore", divide="ignore"):
+        relative = np.where(before > 0, per_m2_b / before - 1.0, np.where(per_m2_b > 0, np.inf, 0.0))
+    comparison["pictures"] = _difference_pictures(out_dir, mesh_b, relative)
     write_json(out_dir / "comparison.json", comparison)
     return comparison
+
+
+def _change_uncertainty(summary_a, summary_b):
+    """Error scale of the change in expected penetrations from both runs' discretisation estimates.
+
+    The two runs' errors are treated as independent and added in quadrature; the environment
+    factors are left out because both runs share the same environment model, so its error
+    largely cancels in the difference.
+    """
+    errors = [s.get("discretisation", {}).get("estimated_error") for s in (summary_a, summary_b)]
+    if any(e is None for e in errors):
+        return None
+    return float(np.hypot(*errors))
+
+
+def _difference_pictures(out_dir, mesh, relative):
+    """PNGs of the relative change in penetrations per m² (blue: less risk in B, red: more), or [].
+
+    A relative scale shows a halved risk on a wall as clearly as on a radiator whose absolute
+    risk is a hundred times larger; increases are capped at +100 % in the colours.
+    """
+    from pockmark.report.pictures import VIEWS, rendering_available
+
+    available, _ = rendering_available()
+    if not available:
+        return []
+    import os
+
+    import pyvista
+
+    if not os.environ.get("DISPLAY"):
+        os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
+    shown = mesh.copy()
+    shown.cell_data["change"] = 100.0 * np.clip(np.nan_to_num(relative, nan=0.0, posinf=1.0), -1.0, 1.0)
+    limit = 100.0
+    written = []
+    for suffix, label, direction, up in VIEWS:
+        plotter = pyvista.Plotter(off_screen=True, window_size=(900, 700))
+        plotter.set_background("#f7f7f4")
+        plotter.add_mesh(
+            shown, scalars="change", cmap="RdBu_r", clim=[-limit, limit], nan_color="#b0b0b0",
+            scalar_bar_args={"title": "change in penetrations per m², B against A [%]", "position_x": 0.2, "position_y": 0.04, "width": 0.6},
+        )
+        plotter.add_text(f"{label} (body axes); blue: B is safer", font_size=11, color="#222222")
+        plotter.view_vector(direction, viewup=up)
+        path = out_dir / f"difference_{suffix}.png"
+        plotter.screenshot(str(path))
+        plotter.close()
+        written.append(path.name)
+    return written
 
 
 def format_comparison(comparison):
@@ -117,6 +171,15 @@ def format_comparison(comparison):
         f"  PNP  A {vehicle['pnp_a']:.5f}  ->  B {vehicle['pnp_b']:.5f}   change {vehicle['delta_pnp']:+.5f}"
         f"   (N {vehicle['expected_penetrations_a']:.4g} -> {vehicle['expected_penetrations_b']:.4g})"
     )
+    error = comparison.get("change_error")
+    if error is None:
+        lines.append("  uncertainty of the change: unknown (a run without its resolution check)")
+    else:
+        change = vehicle["delta_expected_penetrations"]
+        verdict = "larger" if abs(change) > 2 * error else "NOT larger"
+        lines.append(
+            f"  change in N {change:+.4g} ± {error:.2g} (discretisation, both runs): {verdict} than twice its error"
+        )
     for key, label in (("requirement_a", "A"), ("requirement_b", "B")):
         requirement = comparison[key]
         if requirement:
@@ -137,5 +200,7 @@ def format_comparison(comparison):
     faces = comparison["faces"]
     lines.append("")
     lines.append(f"  faces compared one to one: {faces['matched']}; faces of B with no counterpart in A: {faces['unmatched_in_b']}")
+    if comparison.get("pictures"):
+        lines.append(f"  pictures of the change: {', '.join(comparison['pictures'])}")
     lines.append("  Caution: model estimates; both runs inherit the environment and ballistic-limit assumptions.")
     return "\n".join(lines)
