@@ -1,5 +1,8 @@
 """Visibility engine: numba kernels against the brute-force oracle and two other ray casters,
-thread-count invariance, sample points, BVH structure, edge cases and input errors."""
+thread-count invariance, sample points, BVH structure, edge cases and input errors.
+
+The oracle (:mod:`pockmark.visibility._reference`) casts every ray against every triangle with
+the same arithmetic and ray rule, so uniform and adaptive counts must match it exactly."""
 
 import re
 
@@ -11,7 +14,11 @@ import trimesh
 from pockmark.constants import tol
 from pockmark.errors import InputError
 from pockmark.visibility import VisibilityEngine, visible_fraction
-from pockmark.visibility._reference import ray_hits_any, visible_fraction_reference
+from pockmark.visibility._reference import (
+    adaptive_counts_reference,
+    ray_hits_any,
+    uniform_counts_reference,
+)
 from pockmark.visibility.bvh import build_bvh, morton_order
 from pockmark.visibility.raycast import triangle_sample_weights
 
@@ -67,6 +74,12 @@ def box_mesh(extents, center=(0.0, 0.0, 0.0), subdivisions=0):
     return box.vertices + np.asarray(center), box.faces
 
 
+def counts_of(engine, directions, **kwargs):
+    """All counts of a query as one (m, k) array."""
+    blocks = [counts for _, _, counts in engine.iter_counts(directions, **kwargs)]
+    return np.hstack(blocks) if blocks else np.zeros((engine.n_faces, 0), dtype=np.uint16)
+
+
 def front_mask(engine, directions):
     normals, d = engine.face_normals, directions
     cosine = normals[:, None, 0] * d[None, :, 0] + normals[:, None, 1] * d[None, :, 1]
@@ -86,15 +99,28 @@ def test_kernel_matches_bruteforce_oracle(scene_seed, samples_per_face):
     directions = random_directions(rng, 20)
     engine = VisibilityEngine(vertices, faces, samples_per_face=samples_per_face, seed=7)
     got = engine.visible_fraction(directions)
-    expected = visible_fraction_reference(
-        vertices, faces, engine._ray_origins, engine.face_normals, directions
-    )
+    expected = uniform_counts_reference(engine, vertices, faces, directions) / samples_per_face
     np.testing.assert_array_equal(got, expected)
     # The scene must exercise both outcomes, or the comparison proves little.
     front = front_mask(engine, directions)
     assert 0.5 < got[front].mean() < 0.98
     if samples_per_face > 1:
         assert ((got > 0.0) & (got < 1.0)).any()
+
+
+@pytest.mark.parametrize(("scene_seed", "refine_level"), [(0, 0), (1, 1), (2, 2), (3, 3)])
+def test_adaptive_kernel_matches_bruteforce_oracle(scene_seed, refine_level):
+    """Adaptive sampling rebuilt one ray at a time: corner probes, then midpoint subdivision."""
+    rng = np.random.default_rng([SEED, 50, scene_seed])
+    vertices, faces = random_scene(rng, n_boxes=4, n_triangles=50)
+    directions = random_directions(rng, 10)
+    engine = VisibilityEngine(vertices, faces, refine_level=refine_level)
+    assert engine.sampling == "adaptive" and engine.full_count == 3 * 4**refine_level
+    got = counts_of(engine, directions)
+    expected = adaptive_counts_reference(engine, vertices, faces, directions)
+    np.testing.assert_array_equal(got, expected)
+    if refine_level > 0:
+        assert ((got > 0) & (got < engine.full_count)).any()
 
 
 def test_kernel_matches_oracle_with_degenerate_faces():
@@ -111,25 +137,34 @@ def test_kernel_matches_oracle_with_degenerate_faces():
     assert np.isfinite(got).all() and np.isfinite(engine.face_normals).all()
     np.testing.assert_array_equal(got[-2:], 0.0)
     np.testing.assert_array_equal(engine.face_normals[-2:], 0.0)
-    expected = visible_fraction_reference(
-        vertices, faces, engine._ray_origins, engine.face_normals, directions,
-        occluders=~engine.degenerate_faces,
-    )
+    expected = uniform_counts_reference(engine, vertices, faces, directions) / 4
     np.testing.assert_array_equal(got, expected)
+    adaptive = VisibilityEngine(vertices, faces, refine_level=2)
+    np.testing.assert_array_equal(counts_of(adaptive, directions),
+                                  adaptive_counts_reference(adaptive, vertices, faces, directions))
 
 
 # --- thread-count invariance and progress --------------------------------------------------
 
 
 @requires_two_threads
-def test_one_and_two_threads_are_bit_identical():
+@pytest.mark.parametrize("settings", [{"samples_per_face": 5, "seed": 3}, {"refine_level": 3}])
+def test_one_and_two_threads_are_bit_identical(settings):
     rng = np.random.default_rng([SEED, 20])
     vertices, faces = random_scene(rng, n_boxes=6, n_triangles=150)
     directions = fibonacci_directions(300)
-    engine = VisibilityEngine(vertices, faces, samples_per_face=5, seed=3)
+    engine = VisibilityEngine(vertices, faces, **settings)
     serial = engine.visible_fraction(directions, threads=1)
+    rays = engine.last_run["rays"]
     parallel = engine.visible_fraction(directions, threads=2)
     assert serial.tobytes() == parallel.tobytes()
+    if engine.sampling == "uniform":
+        assert engine.last_run["rays"] == rays
+    else:  # two threads may both trace a refinement point shared by two faces
+        assert rays <= engine.last_run["rays"] <= 1.05 * rays
+    weights = np.random.default_rng(1).random(len(directions))
+    sums = [engine.exposure_sums(directions, weights, threads=t) for t in (1, 2)]
+    assert sums[0].tobytes() == sums[1].tobytes()
     assert numba.get_num_threads() == numba.config.NUMBA_NUM_THREADS
 
 
@@ -161,13 +196,14 @@ def test_same_seed_same_result_and_wrapper_matches_engine():
 
 def _per_ray_reference(engine, directions, hits_any):
     """Visible fractions from another caster's any-hit answer on the engine's own rays."""
-    origins = engine._ray_origins.reshape(-1, 3)
+    points = engine.sample_points().reshape(-1, 3)
     s = engine.samples_per_face
     front = front_mask(engine, directions)
     result = np.zeros(front.shape)
     for j, u in enumerate(directions):
         rays = np.repeat(front[:, j], s)
-        hit = hits_any(origins[rays], np.tile(u, (int(rays.sum()), 1)))
+        origins = points[rays] + engine.ray_offset * u
+        hit = hits_any(origins, np.tile(u, (int(rays.sum()), 1)))
         result[front[:, j], j] = (~hit).reshape(-1, s).sum(axis=1) / s
     return result
 
@@ -178,8 +214,9 @@ def test_agrees_with_trimesh_ray_triangle(scene_seed):
     from trimesh.ray.ray_triangle import RayMeshIntersector
 
     rng = np.random.default_rng([SEED, 30, scene_seed])
-    # Scaled up so that the own face, which lies tol.ray_offset * diagonal behind each origin,
-    # is farther behind than the 1e-6 (absolute) that trimesh still counts as a forward hit.
+    # Scaled up so that the own face, which lies tol.ray_offset * diagonal behind each origin
+    # (along the ray), is farther behind than the 1e-6 (absolute) that trimesh still counts
+    # as a forward hit. The boxes are closed, so their back faces do not change any answer.
     vertices, faces = random_scene(rng, scale=100.0)
     directions = fibonacci_directions(20)
     engine = VisibilityEngine(vertices, faces, samples_per_face=4)
@@ -237,8 +274,12 @@ def test_ray_through_shared_edge_and_shared_vertex_is_stopped():
         faces = np.vstack([[0, 1, 2], 3 + np.array(blocker_faces)])
         engine = VisibilityEngine(vertices, faces, samples_per_face=1)
         assert engine.visible_fraction(up)[0, 0] == 0.0
-        origin = engine._ray_origins[0]
+        origin = engine.sample_points()[0] + engine.ray_offset * up
         assert ray_hits_any(origin, up, vertices, faces, [0])[0]
+        # An adaptive probe at the emitter's corners passes beside the blockers' edges, but
+        # the refinement lattice includes the centroid ray's neighbours: still shadowed.
+        adaptive = VisibilityEngine(vertices, faces, refine_level=3)
+        assert adaptive.visible_fraction(up)[0, 0] == 0.0
 
 
 def test_rays_leaving_a_flat_grid_do_not_hit_the_surface_they_start_on():
@@ -249,20 +290,22 @@ def test_rays_leaving_a_flat_grid_do_not_hit_the_surface_they_start_on():
     directions = np.column_stack(
         [np.cos(elevation) * 0.6, np.cos(elevation) * 0.8, np.sin(elevation)]
     )
-    engine = VisibilityEngine(vertices, faces, samples_per_face=4)
-    result = engine.visible_fraction(directions)
-    front = front_mask(engine, directions)
-    np.testing.assert_array_equal(result[front], 1.0)
-    np.testing.assert_array_equal(result[~front], 0.0)
+    for engine in (VisibilityEngine(vertices, faces, samples_per_face=4),
+                   VisibilityEngine(vertices, faces, refine_level=3)):
+        result = engine.visible_fraction(directions)
+        front = front_mask(engine, directions)
+        np.testing.assert_array_equal(result[front], 1.0)
+        np.testing.assert_array_equal(result[~front], 0.0)
 
 
-def test_box_inside_a_closed_box_receives_nothing():
+@pytest.mark.parametrize("settings", [{"samples_per_face": 4}, {"refine_level": 2}])
+def test_box_inside_a_closed_box_receives_nothing(settings):
     inner_vertices, inner_faces = box_mesh([1.0, 1.0, 1.0], subdivisions=1)
     outer_vertices, outer_faces = box_mesh([4.0, 3.0, 5.0], center=(0.2, 0.1, -0.3))
     vertices = np.vstack([inner_vertices, outer_vertices])
     faces = np.vstack([inner_faces, outer_faces + len(inner_vertices)])
     directions = fibonacci_directions(200)
-    engine = VisibilityEngine(vertices, faces, samples_per_face=4)
+    engine = VisibilityEngine(vertices, faces, **settings)
     result = engine.visible_fraction(directions)
     n_inner = len(inner_faces)
     np.testing.assert_array_equal(result[:n_inner], 0.0)
@@ -276,6 +319,8 @@ def test_single_triangle_front_and_back():
     directions = np.array([[0.0, 0.0, 1.0], [0.0, 0.0, -1.0], [1.0, 0.0, 0.0], [0.6, 0.0, 0.8]])
     result = visible_fraction(vertices, [[0, 1, 2]], directions)
     np.testing.assert_array_equal(result, [[1.0, 0.0, 0.0, 1.0]])
+    adaptive = VisibilityEngine(vertices, [[0, 1, 2]]).visible_fraction(directions)
+    np.testing.assert_array_equal(adaptive, [[1.0, 0.0, 0.0, 1.0]])
 
 
 def test_all_faces_degenerate_gives_zeros():
@@ -286,7 +331,10 @@ def test_all_faces_degenerate_gives_zeros():
 
 def test_empty_direction_set():
     vertices, faces = box_mesh([1.0, 1.0, 1.0])
-    assert VisibilityEngine(vertices, faces).visible_fraction(np.zeros((0, 3))).shape == (12, 0)
+    engine = VisibilityEngine(vertices, faces)
+    assert engine.visible_fraction(np.zeros((0, 3))).shape == (12, 0)
+    assert list(engine.iter_visible(np.zeros((0, 3)))) == []
+    np.testing.assert_array_equal(engine.exposure_sums(np.zeros((0, 3)), np.zeros(0)), 0.0)
 
 
 # --- sample points -------------------------------------------------------------------------
@@ -297,8 +345,8 @@ def test_one_sample_is_the_centroid():
     vertices, faces = box_mesh([1.0, 2.0, 3.0])
     engine = VisibilityEngine(vertices, faces, samples_per_face=1, seed=99)
     centroids = vertices[faces].mean(axis=1)
-    lifted = centroids + tol.ray_offset * np.linalg.norm([1.0, 2.0, 3.0]) * engine.face_normals
-    np.testing.assert_allclose(engine._ray_origins[:, 0], lifted, rtol=0, atol=1e-14)
+    np.testing.assert_allclose(engine.sample_points()[:, 0], centroids, rtol=0, atol=1e-15)
+    assert engine.ray_offset == tol.ray_offset * np.linalg.norm([1.0, 2.0, 3.0])
 
 
 @pytest.mark.parametrize("level", [1, 2, 3])
@@ -329,13 +377,13 @@ def test_any_sample_count_is_balanced_inside_the_triangle(samples_per_face):
 
 def test_seed_reorients_patterns_but_not_power_of_four_sets():
     vertices, faces = box_mesh([1.0, 1.0, 1.0], subdivisions=1)
-    a = VisibilityEngine(vertices, faces, samples_per_face=2, seed=1)._ray_origins
-    b = VisibilityEngine(vertices, faces, samples_per_face=2, seed=2)._ray_origins
-    c = VisibilityEngine(vertices, faces, samples_per_face=2, seed=1)._ray_origins
+    a = VisibilityEngine(vertices, faces, samples_per_face=2, seed=1).sample_points()
+    b = VisibilityEngine(vertices, faces, samples_per_face=2, seed=2).sample_points()
+    c = VisibilityEngine(vertices, faces, samples_per_face=2, seed=1).sample_points()
     np.testing.assert_array_equal(a, c)
     assert not np.array_equal(a, b)
-    a4 = VisibilityEngine(vertices, faces, samples_per_face=4, seed=1)._ray_origins
-    b4 = VisibilityEngine(vertices, faces, samples_per_face=4, seed=2)._ray_origins
+    a4 = VisibilityEngine(vertices, faces, samples_per_face=4, seed=1).sample_points()
+    b4 = VisibilityEngine(vertices, faces, samples_per_face=4, seed=2).sample_points()
     for face_a, face_b in zip(a4.round(9), b4.round(9), strict=True):
         assert sorted(map(tuple, face_a)) == sorted(map(tuple, face_b))
     assert not np.array_equal(a4, b4)  # same sets, laid out in a different order
@@ -408,6 +456,19 @@ _FACES = box_mesh([1.0, 1.0, 1.0])[1]
         ({"samples_per_face": True}, "samples_per_face must be a positive integer; got True"),
         ({"seed": -1}, "seed must be a non-negative integer; got -1"),
         ({"seed": "a"}, "seed must be a non-negative integer; got 'a'"),
+        ({"sampling": "dense"}, "sampling must be one of 'adaptive', 'uniform'; got 'dense'"),
+        ({"sampling": "adaptive", "samples_per_face": 4},
+         "samples_per_face applies to uniform sampling; with sampling='adaptive' set "
+         "refine_level instead"),
+        ({"refine_level": 6}, "refine_level must be an integer from 0 to 5; got 6"),
+        ({"refine_level": 1.5}, "refine_level must be an integer from 0 to 5; got 1.5"),
+        ({"samples_per_face": 70000}, "samples_per_face must be at most 65535; got 70000"),
+        ({"face_layers": np.zeros(3, dtype=int)},
+         "face_layers must be an integer array of shape (12,); got int64 array of shape (3,)"),
+        ({"coincidence_tolerance": -1.0},
+         "coincidence_tolerance must be a finite non-negative length; got -1.0"),
+        ({"ray_offset": 0.0}, "ray_offset must be positive; got 0.0"),
+        ({"cache": 3}, "cache must be None, True, a directory or a VisibilityCache; got 3"),
     ],
 )
 def test_engine_input_errors(kwargs, message):

@@ -232,7 +232,11 @@ def assess(case, progress=None):
     settings = case.analysis
     threads = _usable_threads(settings.threads)
     clock = time.perf_counter()
-    engine = VisibilityEngine(mesh.vertices, mesh.faces, samples_per_face=settings.samples_per_face, seed=settings.seed)
+    # The on-disk visibility cache (keyed by geometry, directions and sampling) lets a rerun
+    # that changes only shields, tags or the environment's magnitudes skip the ray work.
+    engine = VisibilityEngine(
+        mesh.vertices, mesh.faces, samples_per_face=settings.samples_per_face, seed=settings.seed, cache=True
+    )
     total = sum(len(f.directions) for fluxes in phase_fluxes for group in fluxes.values() for f in group)
     done = 0
 

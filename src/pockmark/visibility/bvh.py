@@ -44,6 +44,8 @@ class BVH:
         Index of each triangle in the mesh's face array.
     depth : int
         Number of nodes on the longest root-to-leaf path (sizes the traversal stack).
+    node_parent : (n_nodes,) int
+        Parent of each node, -1 for the root (traversal can restart in a subtree).
     """
 
     node_bounds: np.ndarray
@@ -54,6 +56,7 @@ class BVH:
     tri_e2: np.ndarray
     tri_face: np.ndarray
     depth: int
+    node_parent: np.ndarray = None
 
     @property
     def n_nodes(self):
@@ -112,6 +115,12 @@ def build_bvh(vertices, faces, include=None, max_leaf_size=4, n_bins=16):
                                        int(n_bins))
     )
     node_bounds = node_bounds[:n_nodes].copy()
+    node_start = node_start[:n_nodes].copy()
+    node_count = node_count[:n_nodes].copy()
+    node_parent = np.full(n_nodes, -1, dtype=np.int64)
+    interior = np.flatnonzero(node_count == 0) if len(selected) else np.zeros(0, dtype=np.int64)
+    node_parent[node_start[interior]] = interior
+    node_parent[node_start[interior] + 1] = interior
     if len(selected):
         size = max(float(np.linalg.norm(box_max.max(axis=0) - box_min.min(axis=0))),
                    float(np.abs(vertices).max()))
@@ -120,13 +129,14 @@ def build_bvh(vertices, faces, include=None, max_leaf_size=4, n_bins=16):
         node_bounds[:, 3:] += padding
     return BVH(
         node_bounds=node_bounds,
-        node_start=node_start[:n_nodes].copy(),
-        node_count=node_count[:n_nodes].copy(),
+        node_start=node_start,
+        node_count=node_count,
         tri_v0=np.ascontiguousarray(v0[order]),
         tri_e1=np.ascontiguousarray((v1 - v0)[order]),
         tri_e2=np.ascontiguousarray((v2 - v0)[order]),
         tri_face=np.ascontiguousarray(selected[order]),
         depth=int(depth),
+        node_parent=node_parent,
     )
 
 
