@@ -12,7 +12,9 @@ import numpy as np
 from pockmark.errors import FormatError
 
 #: Files a run writes into its output directory.
-RUN_FILES = ("summary.json", "faces.csv", "faces.vtp", "report.html")
+RUN_FILES = (
+    "summary.json", "faces.csv", "faces.vtp", "report.html", "by_component.csv", "by_tag.csv", "by_source.csv"
+)
 
 
 def prepare_output_dir(out_dir, inputs, overwrite=False, files=RUN_FILES):

@@ -61,4 +61,16 @@ def write_run(assessment, summary, out_dir):
             "components": [c.name for c in assessment.vehicle.components],
         },
     )
+    for group in ("by_component", "by_tag", "by_source"):
+        write_table_csv(out_dir / f"{group}.csv", _group_columns(summary[group]))
     write_json(out_dir / "summary.json", summary)
+
+
+def _group_columns(entries):
+    """Columns of one breakdown of the summary: a row per group, the scalar fields as columns."""
+    names = list(entries)
+    fields = [k for k, v in next(iter(entries.values()), {}).items() if isinstance(v, (int, float, str, bool))]
+    columns = {"name": np.asarray(names, dtype=object)}
+    for field in fields:
+        columns[field] = np.asarray([entries[n].get(field) for n in names], dtype=object)
+    return columns
