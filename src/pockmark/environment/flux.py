@@ -489,7 +489,7 @@ def meteoroid_flux(
     Two focusing conventions, never combined (environment.md §2.2 and §4 #10); the one used is
     recorded in ``parameters["focusing"]`` with its factor in ``"focusing_factor"``:
 
-    * ``"nasa_1994"``, that of the ISS design documents (NASA SSP 30425 Rev. B and TM-4527,
+    * ``"nasa_1994"``, that of the space-station design documents (NASA SSP 30425 Rev. B and TM-4527,
       1994): :math:`G = 1 + (R_E + 100\\ \\mathrm{km})/(R_E + h)`
       (:func:`~pockmark.environment.orbit.focusing_factor_nasa`) with the NASA analytic speed
       distribution as it stands (:func:`~pockmark.environment.meteoroid_speed.speed_bins_nasa`,

@@ -1,6 +1,6 @@
 """Speed distribution of meteoroids in Earth orbit.
 
-Scope: the analytic near-Earth meteoroid speed distribution of the ISS design environment
+Scope: the analytic near-Earth meteoroid speed distribution of the space-station design environment
 (NASA SSP 30425 Rev. B / TM-4527, 1994), 11.1–72.2 km s⁻¹, and its discretisation into speed
 bins, in two focusing conventions that must never be combined:
 
@@ -53,7 +53,7 @@ RAW_NORMALISATION_NASA = float(_raw_moments(*SPEED_RANGE_NASA)[0])
 
 
 def speed_density_nasa(speed):
-    """Probability density of meteoroid impact speed in Earth orbit, ISS design convention.
+    """Probability density of meteoroid impact speed in Earth orbit, space-station design convention.
 
     Parameters
     ----------

@@ -85,7 +85,7 @@ def focusing_factor_nasa(altitude):
     -----
     .. math:: G = 1 + \\frac{R_E + 100\\ \\mathrm{km}}{R_E + h}
 
-    This is the form of the ISS design documents [1]_, [2]_ (from memory, corroborated by an
+    This is the form of the space-station design documents [1]_, [2]_ (from memory, corroborated by an
     independent unpublished reproduction). It equals the physical focusing factor
     :math:`1 + v_{esc}^2(r)/v_\\infty^2` for a single free-space speed equal to the escape
     speed at 100 km altitude (11.09 km s⁻¹), and is therefore 40–50 % larger than the physical

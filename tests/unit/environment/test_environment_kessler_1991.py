@@ -19,7 +19,7 @@ from pockmark.environment.kessler_1991 import (
 )
 from pockmark.errors import InputError, ModelRangeWarning
 
-ISS = dict(altitude=400.0, inclination=51.6, year=1995.0, solar_flux=70.0)
+LOW_ORBIT_1995 = dict(altitude=400.0, inclination=51.6, year=1995.0, solar_flux=70.0)
 
 
 def test_size_factor_peak_and_symmetry():
@@ -64,7 +64,7 @@ def test_inclination_factor_nodes_and_clamp():
 
 def test_flux_decreases_with_diameter_and_solar_flux():
     d = np.logspace(-3, 2, 200)
-    f = kessler_1991(d, **ISS)
+    f = kessler_1991(d, **LOW_ORBIT_1995)
     assert np.all(np.diff(f) < 0)
     s = np.linspace(65, 250, 20)
     fs = kessler_1991(1.0, 400.0, 51.6, 1995.0, s)
@@ -77,12 +77,12 @@ def test_flux_grows_with_year():
 
 
 def test_infinite_diameter_gives_zero_and_nan_propagates():
-    out = kessler_1991(np.array([np.inf, np.nan, 1.0]), **ISS)
+    out = kessler_1991(np.array([np.inf, np.nan, 1.0]), **LOW_ORBIT_1995)
     assert out[0] == 0.0 and np.isnan(out[1]) and out[2] > 0
 
 
 def test_scalar_returns_float_and_broadcasting():
-    assert isinstance(kessler_1991(1.0, **ISS), float)
+    assert isinstance(kessler_1991(1.0, **LOW_ORBIT_1995), float)
     out = kessler_1991(np.array([[0.1], [1.0]]), np.array([400.0, 500.0, 600.0]), 51.6, 2000, 100)
     assert out.shape == (2, 3)
 
@@ -104,7 +104,7 @@ def test_scalar_returns_float_and_broadcasting():
     ],
 )
 def test_input_errors(kwargs, match):
-    args = dict(diameter=1.0, **ISS)
+    args = dict(diameter=1.0, **LOW_ORBIT_1995)
     args.update(kwargs)
     with pytest.raises(InputError, match=match):
         kessler_1991(**args)
@@ -129,7 +129,7 @@ def _warnings_of(call):
     ],
 )
 def test_range_warnings(kwargs, word):
-    args = dict(diameter=1.0, **ISS)
+    args = dict(diameter=1.0, **LOW_ORBIT_1995)
     args.update(kwargs)
     result, caught = _warnings_of(lambda: kessler_1991(**args))
     assert len(caught) == 1 and word in str(caught[0].message)
@@ -153,7 +153,7 @@ def test_one_warning_per_call_for_several_issues():
 
 
 def test_no_warning_inside_range():
-    _, caught = _warnings_of(lambda: kessler_1991(np.logspace(-3, 2, 5), **ISS))
+    _, caught = _warnings_of(lambda: kessler_1991(np.logspace(-3, 2, 5), **LOW_ORBIT_1995))
     assert caught == []
 
 
