@@ -17,7 +17,8 @@ computes the visible count of every (face, direction) pair for M Fibonacci direc
 Compile time is kept out of the figures (a warm-up query first; numba caches the kernels on
 disk). Each engine runs ``--repeats`` times, interleaved so that both see the same machine
 load; the median is reported, with the CPU time other processes used meanwhile. Peak memory is
-the largest resident set size sampled during the run.
+the largest resident set size of the process sampled during a run (both engines and the mesh
+live in the one process), with the growth during that run.
 
 Errors are mean absolute errors of the per-face visible fractions against a converged
 reference (uniform sampling with ``--reference-samples`` points per face, default 256) on a
@@ -189,7 +190,8 @@ class Meter:
         return (sum(fields[:8]) - idle) / os.sysconf("SC_CLK_TCK")
 
     def __enter__(self):
-        self.peak = self._rss()
+        self.start_rss = self._rss()
+        self.peak = self.start_rss
         self._stop = threading.Event()
         self._thread = threading.Thread(target=self._sample, daemon=True)
         self._thread.start()
@@ -327,7 +329,8 @@ def bench(n_faces, args):
     with Meter() as meter:
         engine = VisibilityEngine(vertices, faces, **settings)
     say(f"pockmark setup (BVH, parts, hull, probes): {meter.seconds:.2f} s, "
-        f"peak RSS {meter.peak / 2**20:.0f} MiB")
+        f"peak RSS {meter.peak / 2**20:.0f} MiB (+{(meter.peak - meter.start_rss) / 2**20:.0f} "
+        "during the set-up)")
     clock = time.perf_counter()
     engine.visible_fraction(directions[:2], threads=args.threads)  # compile or load kernels
     say(f"pockmark warm-up (JIT compile or cache load): {time.perf_counter() - clock:.1f} s")
@@ -347,17 +350,21 @@ def bench(n_faces, args):
         with Meter() as meter:
             rays, picked_pockmark = run_pockmark(engine, directions, subset, columns,
                                                  args.threads)
-        results["pockmark"].append((meter.seconds, rays, meter.peak, meter.other_load))
+        results["pockmark"].append((meter.seconds, rays, meter.peak, meter.other_load,
+                                    meter.peak - meter.start_rss))
+        grown = (meter.peak - meter.start_rss) / 2**20
         say(f"  repeat {repeat + 1}: pockmark {meter.seconds:7.2f} s  {rays:,} rays  "
-            f"peak RSS {meter.peak / 2**20:,.0f} MiB  other load {meter.other_load:.2f} cores")
+            f"peak RSS {meter.peak / 2**20:,.0f} MiB (+{grown:,.0f} during the query)  "
+            f"other load {meter.other_load:.2f} cores")
         if embree is not None:
             with Meter() as meter:
                 rays_e, trace_seconds, picked_embree = embree.run(directions, subset, columns)
             results["embree"].append((trace_seconds, rays_e, meter.peak, meter.other_load,
-                                      meter.seconds))
+                                      meter.peak - meter.start_rss))
             say(f"  repeat {repeat + 1}: embree   {trace_seconds:7.2f} s  {rays_e:,} rays  "
                 f"(with ray set-up {meter.seconds:.2f} s)  peak RSS {meter.peak / 2**20:,.0f} "
-                f"MiB  other load {meter.other_load:.2f} cores")
+                f"MiB (+{(meter.peak - meter.start_rss) / 2**20:,.0f} during the run)  "
+                f"other load {meter.other_load:.2f} cores")
 
     reference_engine = VisibilityEngine(vertices, faces, samples_per_face=args.reference_samples)
     clock = time.perf_counter()
