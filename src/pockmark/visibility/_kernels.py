@@ -19,6 +19,12 @@ a threshold that depends on the triangle:
   tolerance behind it, covers the point); of an earlier layer if t > ``t_below`` (> 0: it has
   to be more than the tolerance in front of the point).
 
+Rays whose answer is certain are not traced: a point on a face in a plane of the convex hull
+of the whole mesh (``FACE_HULL``), or of its own part when the ray misses every other part's
+box (``FACE_PART_HULL``), is lit, provided the face turns toward u by at least ``hull_cosine``.
+A traced ray starts its search in the subtree where the previous ray of its block was stopped
+(:func:`_trace`).
+
 The face × direction loops are written once as block functions (one direction and a range of
 faces or probe points; each writes only its own output slots) and driven by a serial and a
 parallel driver, so results do not depend on the number of threads. Two drivers are written
