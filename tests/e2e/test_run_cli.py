@@ -98,11 +98,14 @@ def test_help_lists_commands():
 
 
 @pytest.mark.slow
-def test_demo_case_end_to_end(tmp_path):
+def test_demo_case_end_to_end(tmp_path, caplog):
     """The README's demo command: the committed demo vehicle and case run and look plausible."""
     out = tmp_path / "demo"
     result = run("run", ROOT / "models/imager_sat/case.toml", "--out", out)
     assert result.exit_code == 0, result.output
+    # Every picture and plot of the report is drawn from the run's own summary.
+    assert "not drawn" not in caplog.text
+    assert (out / "pictures" / "risk_by_size.png").is_file()
     summary = json.loads((out / "summary.json").read_text())
     # Plausibility only (common practice, no source): a small LEO satellite over five years
     # has a PNP well inside (0.5, 1) and the ram-facing parts carry most debris risk.

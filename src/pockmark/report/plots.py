@@ -187,12 +187,16 @@ def plot_pareto(pareto, path):
 
 
 def _size_edges(edges):
-    """Bin edges with an open-ended last bin (``None`` or infinity) closed for drawing."""
+    """Bin edges closed for drawing on a log axis: an open-ended last bin (``None`` or
+    infinity) ends one bin ratio above its lower edge, and a first bin starting at 0 (every
+    size below the next edge) starts one bin ratio below its upper edge."""
     edges = [float("inf") if e is None else float(e) for e in edges]
     shown = np.array(edges, dtype=float)
     open_end = not np.isfinite(shown[-1])
     if open_end:
         shown[-1] = shown[-2] * (shown[-2] / shown[-3] if len(shown) > 2 and shown[-3] > 0 else 3.0)
+    if len(shown) > 2 and shown[0] == 0.0 and 0.0 < shown[1] < shown[2]:
+        shown[0] = shown[1] / (shown[2] / shown[1])
     return shown, open_end
 
 

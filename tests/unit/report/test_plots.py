@@ -84,3 +84,15 @@ def test_sky_map_of_directions_filling_the_sphere(tmp_path):
         tmp_path / "sky.png",
     )
     assert picture is not None and picture.path.is_file()
+
+
+def test_size_breakdown_starting_at_zero_is_drawn(tmp_path, caplog):
+    # build_summary's bins start at 0 cm ("every size below the first edge") and end open.
+    edges = [0.0, 0.001, 0.01, 0.1, 1.0, None]
+    with caplog.at_level(logging.WARNING, logger="pockmark"):
+        picture = plot_size_breakdown(
+            {"debris": {"edges_cm": edges, "expected_penetrations": [0.0, 0.1, 0.5, 0.3, 0.1]}},
+            tmp_path / "s.png",
+        )
+    assert picture is not None and (tmp_path / "s.png").stat().st_size > 0
+    assert "not drawn" not in caplog.text
