@@ -35,3 +35,17 @@ def require_positive(name, value, unit=""):
             + (f" at index {index}" if array.ndim else "")
         )
     return array
+
+
+def require_nonnegative(name, value, unit=""):
+    """Raise :class:`InputError` unless every element of ``value`` is finite and ≥ 0."""
+    array = np.asarray(value, dtype=np.float64)
+    bad = ~(np.isfinite(array) & (array >= 0))
+    if np.any(bad):
+        index = int(np.flatnonzero(bad.ravel())[0])
+        suffix = f" [{unit}]" if unit else ""
+        raise InputError(
+            f"{name} must be zero or positive and finite{suffix}; got {array.ravel()[index]:g}"
+            + (f" at index {index}" if array.ndim else "")
+        )
+    return array

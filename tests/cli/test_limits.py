@@ -162,3 +162,56 @@ def test_import_is_light():
     result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                             check=True)
     assert result.stdout.strip() == "False"
+
+
+NEW_FORMS = {
+    "christiansen_1995_multi_shock": """
+bumper_layers = 4
+bumper_material = "Nextel-AF62"
+standoff = 15.0
+rear_wall_thickness = 0.16
+rear_wall_material = "Al2219-T87"
+""",
+    "ryan_2008_cfrp": """
+front_sheet_thickness = 0.1
+front_sheet_material = "CFRP"
+core_thickness = 2.5
+core_density = 0.05
+rear_sheet_thickness = 0.1
+rear_sheet_material = "CFRP"
+mli_areal_density = 0.05
+""",
+    "schafer_2008_aluminium": """
+outer_sheet_thickness = 0.04
+outer_sheet_material = "Al2024-T3"
+core_thickness = 2.5
+core_density = 0.05
+inner_sheet_thickness = 0.04
+inner_sheet_material = "Al2024-T3"
+gap = 10.0
+wall_thickness = 0.15
+wall_material = "Al6061-T6"
+""",
+    "christiansen_2009_mli": """
+wall_thickness = 0.1
+wall_material = "Al6061-T6"
+""",
+}
+
+
+@pytest.mark.parametrize("equation", sorted(NEW_FORMS))
+def test_every_build_up_can_be_plotted(shadowed_box_case, tmp_path, equation):
+    """A shield of each multi-layer form defined in a case file gives curves, a PNG and a
+    table row per speed; the curve is finite and positive wherever particles hit."""
+    with shadowed_box_case.open("a", encoding="utf-8") as handle:
+        handle.write(f'\n[shields.extra]\nequation = "{equation}"\n{NEW_FORMS[equation]}')
+    out = tmp_path / "limits"
+    result = _run(shadowed_box_case, "--out", out)
+    assert result.exit_code == 0, result.output
+    assert f"Shield 'extra': {equation}" in result.output
+    assert (out / "limits_extra.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    rows = [row for row in _rows(out / "limits.csv") if row["shield"] == "extra"]
+    values = np.array([float(row["critical_diameter_cm"]) for row in rows])
+    angles = np.array([float(row["impact_angle_deg"]) for row in rows])
+    assert len(values) > 10
+    assert np.all(np.isfinite(values[angles < 90.0]) & (values[angles < 90.0] > 0.0))

@@ -206,3 +206,54 @@ def test_ballistic_coefficient_agrees_with_single_wall_prefactor():
     ratio = whipple / single
     np.testing.assert_allclose(ratio, (prefactor / 0.6) ** (18 / 19), rtol=1e-9)
     assert np.all(np.abs(ratio - 1.0) < 0.035)
+
+
+# --- published shots (NASA/TP-2003-210788 test table, as compiled with a transcription) -------
+#
+# Shots of aluminium 2017-T4 spheres (2.796 g cm⁻³) on 6061-T6 bumpers (2.713 g cm⁻³), from the
+# test table of NASA/TP-2003-210788 as compiled, with an independent implementation's
+# results, in an open-source library of ballistic-limit equations by S. Ryan (pyBLOSSUM,
+# commit c9aa929, files data/eval_example.csv and results/eval-NNO-eval_example.csv): shot,
+# diameter [cm], speed [km s⁻¹], angle [°], bumper / spacing / rear wall [cm], rear-wall yield
+# [ksi], outcome, and that implementation's d_c [cm] where it gives one.
+PUBLISHED_SHOTS = [
+    ("A1467", 0.300, 6.10, 45.0, (0.203, 1.98, 0.203), 36.0, "NP", 0.2705849782),
+    ("A1466", 0.281, 6.54, 45.0, (0.203, 1.98, 0.203), 36.0, "NP", 0.2666240082),
+    ("A1468", 0.318, 6.39, 45.0, (0.203, 1.98, 0.203), 36.0, "P", 0.2679743389),
+    ("A1672", 0.318, 6.05, 0.0, (0.064, 10.16, 0.16), 47.0, "P", None),
+    ("A1674", 0.318, 6.30, 0.0, (0.064, 10.16, 0.16), 47.0, "detached spall", None),
+    ("A1676", 0.318, 6.07, 0.0, (0.064, 10.16, 0.16), 47.0, "P", None),
+    ("A1682", 0.318, 6.28, 0.0, (0.064, 10.16, 0.16), 47.0, "P", None),
+]
+
+
+def _shot_critical_diameter(speed, angle, layers, sigma_ksi):
+    bumper, spacing, wall = layers
+    return float(christiansen_1993(speed, angle, 2.796, bumper, 2.713, spacing, wall,
+                                   sigma_ksi * KSI_IN_MPA))
+
+
+@pytest.mark.parametrize("shot", [s for s in PUBLISHED_SHOTS if s[-1] is not None],
+                         ids=lambda s: s[0])
+def test_matches_an_independent_implementation_on_published_shots(shot):
+    """Same d_c as an independent implementation of the equation (pyBLOSSUM's stored
+    results), to its 10 printed digits: a check of our reading of the form (regime choice
+    on V cos θ, anchors, units), not of the constants, which both took from the same form."""
+    _, _, speed, angle, layers, sigma, _, expected = shot
+    assert _shot_critical_diameter(speed, angle, layers, sigma) == pytest.approx(
+        expected, abs=1e-10)
+
+
+@pytest.mark.parametrize("shot", PUBLISHED_SHOTS, ids=lambda s: s[0])
+def test_published_shots_against_the_curve(shot):
+    """Shots that held lie above the curve (the equation is conservative for them); shots
+    that failed (perforation or detached spall, the equation's criterion) lie above it or
+    at most 6 % below it in diameter: A1674 and A1682 failed at 0.95 d_c, the scatter the
+    fit leaves (published outcomes, NASA/TP-2003-210788; the 6 % is what these shots show,
+    not a published bound)."""
+    _, diameter, speed, angle, layers, sigma, outcome, _ = shot
+    critical = _shot_critical_diameter(speed, angle, layers, sigma)
+    if outcome == "NP":
+        assert diameter >= critical
+    else:
+        assert diameter >= 0.94 * critical

@@ -88,10 +88,21 @@ def test_cour_palais_1987_table_a_vectorised():
 def _crater_depth(diameter, speed, angle, projectile_density, wall_density, hardness, c):
     """P∞ written directly from the crater-depth form (not the solved form in the code)."""
     normal = speed * math.cos(math.radians(angle))
+    ratio = projectile_density / wall_density
+    # Density exponent 1/2 below a ratio of 1.5, 2/3 above (switch read second-hand, the
+    # 2/3 from memory; see cour_palais_1987's Notes).
     return (
         5.24 * diameter ** (19 / 18) * hardness ** (-0.25)
-        * (projectile_density / wall_density) ** 0.5 * (normal / c) ** (2 / 3)
+        * ratio ** (0.5 if ratio < 1.5 else 2 / 3) * (normal / c) ** (2 / 3)
     )
+
+
+def test_cour_palais_1987_density_exponent_switch():
+    """Across ρp/ρt = 1.5 the crater-depth density term goes from ratio^(1/2) to ratio^(2/3),
+    so d_c steps by (1/1.5)^(1/6 · 18/19) = 0.938 (form as stated in the docstring)."""
+    below, above = cour_palais_1987(7.0, 0.0, 2.713 * 1.5 * (1 + np.array([-1e-10, 1e-10])),
+                                    0.2, **AL6061)
+    assert above / below == pytest.approx((1 / 1.5) ** (1 / 6 * 18 / 19), rel=1e-8)
 
 
 def test_cour_palais_1987_crater_depth_round_trip():

@@ -15,6 +15,15 @@ christiansen_1993
 christiansen_1995
     Stuffed Whipple shield (bumper, Nextel/Kevlar blanket, rear wall); three regimes on the
     total speed with angle-dependent limits.
+christiansen_1995_multi_shock
+    Multi-shock shield (spaced Nextel bumpers, aluminium rear wall).
+ryan_2008_aluminium, ryan_2008_cfrp
+    Honeycomb sandwich panel with aluminium or CFRP face sheets (published fit with a
+    channelling knock-down).
+schafer_2008_aluminium, schafer_2008_cfrp
+    Triple wall: equipment wall behind an aluminium- or CFRP-sheet sandwich panel (SRL).
+christiansen_2009_mli
+    Aluminium wall behind a baseline thermal blanket (MLI) at the tested 1.5 cm standoff.
 sandwich_summed_face_sheets
     Honeycomb sandwich panel (aluminium or CFRP face sheets) bounded by one wall of the
     summed face sheets; common practice, no source, conservative.
@@ -25,10 +34,10 @@ tabulated_diameter
 threshold_diameter
     Constant critical diameter; not a published model (impact counting and tests).
 
-Not implemented, because their constants could not be read in a source (shared reference
-note on ballistic limits, §2.5-§2.8): multi-shock shields, the published honeycomb-panel
-equations (aluminium and CFRP face sheets), triple-wall forms for equipment behind a panel,
-and a fitted MLI equation (a practice allowance is offered as a shield option instead).
+Not implemented: the modified Christiansen equation of Taylor et al. (1999) for CFRP
+honeycomb panels (constants not found), the handbook's toughened-blanket equation and the
+fabric-rear-wall and hybrid multi-shock variants (their transcriptions are inconsistent; see
+the module docstrings).
 
 Common behaviour: inputs broadcast as numpy arrays; the result is a float64 ndarray (0-d for
 scalar inputs); no impact (speed ≤ 0 or angle ≥ 90°) gives ``inf``; NaN impact conditions give
@@ -42,14 +51,18 @@ Supporting modules: :mod:`~pockmark.ballistics.materials` (named wall materials,
 materials) and :mod:`~pockmark.ballistics.shields` (case-file shield definitions →
 :class:`Shield`).
 
-Every equation constant in this subpackage was recalled from memory of the cited documents
-(see the shared reference note on ballistic limits) and has not yet been checked against the
-printed pages.
+Provenance of the constants: those of cour_palais_1987, christiansen_1993 and
+christiansen_1995 were first recalled from memory and later compared with a second-hand
+transcription (an open-source library of ballistic-limit equations by S. Ryan, who co-wrote
+several of the sources); those of the multi-shock, honeycomb, triple-wall and MLI equations
+were read in that transcription only. None has been checked against the printed pages; each
+docstring says what was compared and what differs.
 """
 
 import inspect
 
 from pockmark.ballistics._common import ValidityRange
+from pockmark.ballistics.blanket import christiansen_2009_mli
 from pockmark.ballistics.materials import (
     MATERIAL_KEYS,
     MATERIALS,
@@ -57,7 +70,10 @@ from pockmark.ballistics.materials import (
     get_material,
     make_material,
 )
+from pockmark.ballistics.multi_shock import christiansen_1995_multi_shock
 from pockmark.ballistics.sandwich import (
+    ryan_2008_aluminium,
+    ryan_2008_cfrp,
     sandwich_summed_face_sheets,
     sandwich_whipple_approximation,
 )
@@ -66,6 +82,7 @@ from pockmark.ballistics.single_wall import FAILURE_COEFFICIENTS, cour_palais_19
 from pockmark.ballistics.stuffed_whipple import christiansen_1995
 from pockmark.ballistics.tabulated import tabulated_diameter
 from pockmark.ballistics.threshold import threshold_diameter
+from pockmark.ballistics.triple_wall import schafer_2008_aluminium, schafer_2008_cfrp
 from pockmark.ballistics.whipple import christiansen_1993
 from pockmark.errors import InputError
 
@@ -75,6 +92,12 @@ __all__ = [
     "cour_palais_1987",
     "christiansen_1993",
     "christiansen_1995",
+    "christiansen_1995_multi_shock",
+    "christiansen_2009_mli",
+    "ryan_2008_aluminium",
+    "ryan_2008_cfrp",
+    "schafer_2008_aluminium",
+    "schafer_2008_cfrp",
     "sandwich_summed_face_sheets",
     "sandwich_whipple_approximation",
     "tabulated_diameter",
@@ -98,6 +121,12 @@ EQUATIONS = {
         cour_palais_1987,
         christiansen_1993,
         christiansen_1995,
+        christiansen_1995_multi_shock,
+        ryan_2008_aluminium,
+        ryan_2008_cfrp,
+        schafer_2008_aluminium,
+        schafer_2008_cfrp,
+        christiansen_2009_mli,
         sandwich_summed_face_sheets,
         sandwich_whipple_approximation,
         tabulated_diameter,
@@ -139,8 +168,7 @@ def critical_diameter(impact_velocity, impact_angle, projectile_density, equatio
 
     See Also
     --------
-    cour_palais_1987, christiansen_1993, christiansen_1995, sandwich_summed_face_sheets,
-    sandwich_whipple_approximation, tabulated_diameter, threshold_diameter
+    EQUATIONS : every registered equation.
 
     Examples
     --------

@@ -118,3 +118,23 @@ def _outside(ranges, impact_velocity, impact_angle, projectile_density):
             flagged |= (value < limits.minimum) | (value > limits.maximum)
         valid = ~(np.isnan(velocity) | np.isnan(angle) | np.isnan(density))
         return flagged & valid & ~_no_impact(velocity, angle)
+
+
+def _three_regimes(velocity, low_limit, high_limit, low_speed, high_speed):
+    """The usual three-regime blend of a ballistic-limit equation.
+
+    ``low_speed(v)`` below ``low_limit``, ``high_speed(v)`` above ``high_limit`` and, between
+    them, the straight line in speed from ``low_speed(low_limit)`` to
+    ``high_speed(high_limit)``. The anchors are the end equations evaluated at the limits, so
+    the result is continuous by construction. Call inside ``np.errstate`` where the branches
+    can divide by zero (grazing angles, zero speed).
+    """
+    low_anchor = low_speed(low_limit)
+    high_anchor = high_speed(high_limit)
+    weight = (velocity - low_limit) / (high_limit - low_limit)
+    intermediate = low_anchor * (1.0 - weight) + high_anchor * weight
+    return np.where(
+        velocity <= low_limit,
+        low_speed(velocity),
+        np.where(velocity >= high_limit, high_speed(velocity), intermediate),
+    )

@@ -59,10 +59,14 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from pockmark.ballistics import stuffed_whipple, whipple
+from pockmark.ballistics import blanket, multi_shock, sandwich, stuffed_whipple, whipple
 from pockmark.ballistics._common import ValidityRange, _outside
+from pockmark.ballistics.blanket import christiansen_2009_mli
 from pockmark.ballistics.materials import MATERIALS, get_material, make_material
+from pockmark.ballistics.multi_shock import christiansen_1995_multi_shock
 from pockmark.ballistics.sandwich import (
+    ryan_2008_aluminium,
+    ryan_2008_cfrp,
     sandwich_summed_face_sheets,
     sandwich_whipple_approximation,
 )
@@ -70,6 +74,7 @@ from pockmark.ballistics.single_wall import FAILURE_COEFFICIENTS, cour_palais_19
 from pockmark.ballistics.stuffed_whipple import christiansen_1995
 from pockmark.ballistics.tabulated import tabulated_diameter
 from pockmark.ballistics.threshold import threshold_diameter
+from pockmark.ballistics.triple_wall import schafer_2008_aluminium, schafer_2008_cfrp
 from pockmark.ballistics.whipple import christiansen_1993
 from pockmark.errors import InputError, ModelRangeWarning
 
@@ -86,10 +91,11 @@ MLI_TREATMENTS = {
 }
 """Treatments of a thermal blanket (MLI) in a Whipple or stuffed-Whipple definition.
 
-No closed-form ballistic-limit equation for MLI could be read in a source (shared reference
-note on ballistic limits, §2.8). Practice (from memory) is to (i) ignore the blanket, which
-is conservative, or (ii) add its areal density to the bumper's; (ii) is offered as an option
-with a warning, labelled as practice.
+The published blanket forms cover other build-ups: ``christiansen_2009_mli`` (a blanket
+standing off a single aluminium wall) and the ``mli_areal_density`` term of the honeycomb and
+triple-wall equations. For Whipple and stuffed-Whipple shields none was found; practice (from
+memory) is to (i) ignore the blanket, which is conservative, or (ii) add its areal density to
+the bumper's; (ii) is offered as an option with a warning, labelled as practice.
 """
 
 
@@ -307,6 +313,26 @@ _STUFFED_SPEED = ValidityRange(
     "assumed light-gas-gun test range as for the Whipple equation; the note states none",
 )
 
+_PANEL_SPEED = ValidityRange(
+    "impact_velocity", 0.0, 8.0, "km s⁻¹",
+    "sandwich-panel tests up to about 7-8 km s⁻¹ (shots compiled with the transcription)",
+)
+_TRIPLE_ANGLE = ValidityRange(
+    "impact_angle", 0.0, 65.0, "°",
+    "the source evaluates larger angles at 65° (read second-hand)",
+)
+_MULTI_SHOCK_SPEED = ValidityRange(
+    "impact_velocity", 0.0, 8.0, "km s⁻¹",
+    "light-gas-gun test range; from memory, low confidence",
+)
+_MULTI_SHOCK_ANGLE = ValidityRange(
+    "impact_angle", 0.0, 60.0, "°", "test base up to about 60°; from memory, low confidence",
+)
+_BLANKET_SPEED = ValidityRange(
+    "impact_velocity", 0.0, 7.0, "km s⁻¹",
+    "light-gas-gun test range; from memory, low confidence",
+)
+
 _MLI_QUANTITY = _Quantity(
     "mli_areal_density", "g cm⁻²",
     "areal density of a thermal blanket (MLI) on the outside; see 'mli_treatment'",
@@ -315,6 +341,12 @@ _MLI_QUANTITY = _Quantity(
 _MLI_OPTION = _Option(
     "mli_treatment", MLI_TREATMENTS, "ignore",
     "how the MLI enters the equation: " + ", ".join(MLI_TREATMENTS),
+)
+_PUBLISHED_MLI_QUANTITY = _Quantity(
+    "mli_areal_density", "g cm⁻²",
+    "areal density of a thermal blanket (MLI) on the outer sheet; enters the equation as "
+    "published (3 × m / 2.78 cm of outer-sheet aluminium)",
+    default=0.0, kind="nonnegative",
 )
 _AREAL_DENSITY_QUANTITY = _Quantity(
     "areal_density", "kg m⁻²", "areal density of the build-up, for mass reporting only",
@@ -345,8 +377,8 @@ def _mli(tag, values, front_density_name):
     note = (
         f"shield {tag!r}: mli_treatment 'add_to_bumper' adds the blanket's {mli:g} g cm⁻² to "
         f"the {front_density_name} in the equation; this is practice, not a fitted equation "
-        f"(no published MLI ballistic-limit form could be read), and it makes the shield look "
-        f"stronger than the default 'ignore' does"
+        f"(no published blanket form for this build-up was found), and it makes the shield "
+        f"look stronger than the default 'ignore' does"
     )
     return mli, (note,)
 
@@ -460,6 +492,83 @@ def _build_sandwich_whipple(tag, values):
     return parameters, front + core + rear, ()
 
 
+def _layered_areal_density(tag, equation, values, name, layers, per_layer, example):
+    """Areal density [g cm⁻²] given as ``name`` or as ``layers`` × ``per_layer``."""
+    given, count, each = values[name], values[layers], values[per_layer]
+    if given is not None:
+        if count:
+            raise InputError(
+                f"shield {tag!r}: give either {name!r} or {layers!r}, not both"
+            )
+        return given
+    if count == 0:
+        raise InputError(
+            f"shield {tag!r}: {equation} needs {name!r} [g cm⁻²] or {layers!r} with a "
+            f"material (e.g. {example!r})"
+        )
+    if each is None:
+        raise InputError(
+            f"shield {tag!r}: {layers} is {count} but the areal density of one layer is "
+            f"unknown; give a material (e.g. {example!r}) or {per_layer!r} [g cm⁻²]"
+        )
+    return count * each
+
+
+def _build_multi_shock(tag, values):
+    bumpers = _layered_areal_density(
+        tag, "christiansen_1995_multi_shock", values, "bumper_areal_density",
+        "bumper_layers", "bumper_layer_areal_density", "Nextel-AF62",
+    )
+    parameters = {
+        "bumper_areal_density": bumpers,
+        "standoff": values["standoff"],
+        "rear_wall_thickness": values["rear_wall_thickness"],
+        "rear_wall_density": values["rear_wall_density"],
+        "rear_wall_yield_strength": values["rear_wall_yield_strength"],
+    }
+    return parameters, bumpers + values["rear_wall_thickness"] * values["rear_wall_density"], ()
+
+
+def _build_ryan(material):
+    def build(tag, values):
+        front, core, rear = _sheets(values)
+        names = ["front_sheet_thickness", "front_sheet_density", "core_thickness",
+                 "rear_sheet_thickness", "mli_areal_density"]
+        names.append("rear_sheet_yield_strength" if material == "aluminium"
+                     else "rear_sheet_density")
+        parameters = {name: values[name] for name in names}
+        return parameters, front + core + rear + values["mli_areal_density"], ()
+    return build
+
+
+def _build_triple_wall(material):
+    def build(tag, values):
+        names = ["outer_sheet_thickness", "core_thickness", "inner_sheet_thickness",
+                 "inner_sheet_density", "gap", "wall_thickness", "wall_yield_strength",
+                 "mli_areal_density"]
+        if material == "cfrp":
+            names.append("outer_sheet_density")
+        parameters = {name: values[name] for name in names}
+        areal = (
+            values["outer_sheet_thickness"] * values["outer_sheet_density"]
+            + values["core_thickness"] * values["core_density"]
+            + values["inner_sheet_thickness"] * values["inner_sheet_density"]
+            + values["wall_thickness"] * values["wall_density"]
+            + values["mli_areal_density"]
+        )
+        return parameters, areal, ()
+    return build
+
+
+def _build_blanket(tag, values):
+    parameters = {
+        "wall_thickness": values["wall_thickness"],
+        "blanket_areal_density": values["blanket_areal_density"],
+    }
+    areal = values["wall_thickness"] * values["wall_density"] + values["blanket_areal_density"]
+    return parameters, areal, ()
+
+
 def _build_tabulated(tag, values):
     parameters = {name: values[name] for name in ("speeds", "angles", "diameters")}
     return parameters, values["areal_density"] / _G_PER_CM2_IN_KG_PER_M2, ()
@@ -489,6 +598,44 @@ def _whipple_regimes(cos_angle):
 def _stuffed_regimes(cos_angle):
     low, high = stuffed_whipple._regime_speeds(cos_angle)
     return (("low → intermediate", low), ("intermediate → high", high))
+
+
+def _multi_shock_regimes(cos_angle):
+    low, high = multi_shock.regime_speeds(cos_angle)
+    return (("low → intermediate", low), ("intermediate → high", high))
+
+
+def _blanket_regimes(cos_angle):
+    low, high = blanket.regime_speeds(cos_angle)
+    return (("low → intermediate", low), ("intermediate → high", high))
+
+
+def _panel_regimes(material):
+    low, high = sandwich.RYAN_REGIME_LIMITS[material]
+    return lambda cos_angle: (("low → intermediate", low / cos_angle),
+                              ("intermediate → high", high / cos_angle))
+
+
+def _triple_wall_quantities(outer_density_in_equation):
+    outer = "outer face-sheet density" + (
+        "" if outer_density_in_equation else " (areal density only)")
+    return (
+        _Quantity("outer_sheet_thickness", "cm", "outer face-sheet thickness of the panel"),
+        _Quantity("outer_sheet_density", "g cm⁻³", outer, "outer_sheet_material", "density"),
+        _Quantity("core_thickness", "cm", "honeycomb core thickness"),
+        _Quantity("core_density", "g cm⁻³",
+                  "bulk density of the honeycomb core (areal density only)"),
+        _Quantity("inner_sheet_thickness", "cm", "inner face-sheet thickness of the panel"),
+        _Quantity("inner_sheet_density", "g cm⁻³", "inner face-sheet density",
+                  "inner_sheet_material", "density"),
+        _Quantity("gap", "cm", "distance from the panel's inner sheet to the equipment wall"),
+        _Quantity("wall_thickness", "cm", "equipment (aluminium) wall thickness"),
+        _Quantity("wall_density", "g cm⁻³", "equipment wall density (areal density only)",
+                  "wall_material", "density"),
+        _Quantity("wall_yield_strength", "MPa", "equipment wall yield strength (0.2 % offset)",
+                  "wall_material", "yield_strength"),
+        _PUBLISHED_MLI_QUANTITY,
+    )
 
 
 def _sheet_quantities(yield_from_rear):
@@ -521,6 +668,22 @@ _CARRIERE_2021 = (
     "R. Carriere and A. Cherniaev, \"Hypervelocity impacts on satellite sandwich structures - "
     "a review of experimental findings and predictive models,\" Appl. Mech., vol. 2, "
     "pp. 25-45, 2021, doi:10.3390/applmech2010003"
+)
+
+_RYAN_2008 = (
+    "S. Ryan, F. Schafer, R. Destefanis and M. Lambert, \"A ballistic limit equation for "
+    "hypervelocity impacts on composite honeycomb sandwich panel satellite structures,\" Adv. "
+    "Space Res., vol. 41, pp. 1152-1166, 2008, doi:10.1016/j.asr.2007.02.032"
+)
+_SCHAFER_2008 = (
+    "F. Schafer, S. Ryan, M. Lambert and R. Putzar, \"Ballistic limit equation for equipment "
+    "placed behind satellite structure walls,\" Int. J. Impact Eng., vol. 35, pp. 1784-1791, "
+    "2008, doi:10.1016/j.ijimpeng.2008.07.074"
+)
+_SECOND_HAND = "published (constants read in a second-hand transcription)"
+_TRIPLE_WALL_NOTICE = (
+    "the triple-wall low-speed branch uses t_w where the transcription it was read in has "
+    "t_w^(1/2) (taken for a typo); treat results below the high-speed limit with extra doubt"
 )
 
 _SPECS = {
@@ -661,6 +824,110 @@ _SPECS = {
             "sandwich_whipple_approximation treats a honeycomb panel as a Whipple shield, "
             "which is known to be NON-conservative (the cells channel the debris cloud); "
             "compare with sandwich_summed_face_sheets, a conservative bound"
+        ),
+    ),
+    "christiansen_1995_multi_shock": _EquationSpec(
+        function=christiansen_1995_multi_shock,
+        reference=(
+            "B. G. Cour-Palais and J. L. Crews, \"A multi-shock concept for spacecraft "
+            "shielding,\" Int. J. Impact Eng., vol. 10, pp. 135-146, 1990; equation of "
+            f"Christiansen et al. (1995) as restated in {_TP_2003}"
+        ),
+        status=_SECOND_HAND,
+        validity=f"{_MULTI_SHOCK_ANGLE.describe()}; {_MULTI_SHOCK_SPEED.describe()}",
+        quantities=(
+            _Quantity("bumper_layers", "count", "number of fabric bumpers (usually 4)",
+                      default=0, kind="count"),
+            _Quantity("bumper_layer_areal_density", "g cm⁻²", "areal density of one bumper",
+                      "bumper_material", "layer_areal_density", required=False),
+            _Quantity("bumper_areal_density", "g cm⁻²",
+                      "areal density of all bumpers together (instead of layers)",
+                      required=False),
+            _Quantity("standoff", "cm", "spacing from the first bumper to the rear wall"),
+            _Quantity("rear_wall_thickness", "cm", "aluminium rear-wall thickness"),
+            _Quantity("rear_wall_density", "g cm⁻³", "rear-wall density",
+                      "rear_wall_material", "density"),
+            _Quantity("rear_wall_yield_strength", "MPa",
+                      "rear-wall yield strength (0.2 % offset)",
+                      "rear_wall_material", "yield_strength"),
+        ),
+        material_keys=("bumper_material", "rear_wall_material"),
+        build=_build_multi_shock,
+        ranges=lambda parameters: (_MULTI_SHOCK_ANGLE, _MULTI_SHOCK_SPEED),
+        regimes=_multi_shock_regimes,
+    ),
+    "ryan_2008_aluminium": _EquationSpec(
+        function=ryan_2008_aluminium,
+        reference=_RYAN_2008,
+        status=_SECOND_HAND,
+        validity=_PANEL_SPEED.describe(),
+        quantities=_sheet_quantities(yield_from_rear=True) + (_PUBLISHED_MLI_QUANTITY,),
+        material_keys=("front_sheet_material", "rear_sheet_material"),
+        build=_build_ryan("aluminium"),
+        ranges=lambda parameters: (_PANEL_SPEED,),
+        regimes=_panel_regimes("aluminium"),
+    ),
+    "ryan_2008_cfrp": _EquationSpec(
+        function=ryan_2008_cfrp,
+        reference=_RYAN_2008,
+        status=_SECOND_HAND,
+        validity=_PANEL_SPEED.describe(),
+        quantities=_sheet_quantities(yield_from_rear=False) + (_PUBLISHED_MLI_QUANTITY,),
+        material_keys=("front_sheet_material", "rear_sheet_material"),
+        build=_build_ryan("cfrp"),
+        ranges=lambda parameters: (_PANEL_SPEED,),
+        regimes=_panel_regimes("cfrp"),
+    ),
+    "schafer_2008_aluminium": _EquationSpec(
+        function=schafer_2008_aluminium,
+        reference=_SCHAFER_2008,
+        status=_SECOND_HAND,
+        validity=f"{_TRIPLE_ANGLE.describe()}; {_PANEL_SPEED.describe()}",
+        quantities=_triple_wall_quantities(outer_density_in_equation=False),
+        material_keys=("outer_sheet_material", "inner_sheet_material", "wall_material"),
+        build=_build_triple_wall("aluminium"),
+        ranges=lambda parameters: (_TRIPLE_ANGLE, _PANEL_SPEED),
+        regimes=_panel_regimes("aluminium"),
+        default_angle_cap=65.0,
+        notice=_TRIPLE_WALL_NOTICE,
+    ),
+    "schafer_2008_cfrp": _EquationSpec(
+        function=schafer_2008_cfrp,
+        reference=_SCHAFER_2008,
+        status=_SECOND_HAND,
+        validity=f"{_TRIPLE_ANGLE.describe()}; {_PANEL_SPEED.describe()}",
+        quantities=_triple_wall_quantities(outer_density_in_equation=True),
+        material_keys=("outer_sheet_material", "inner_sheet_material", "wall_material"),
+        build=_build_triple_wall("cfrp"),
+        ranges=lambda parameters: (_TRIPLE_ANGLE, _PANEL_SPEED),
+        regimes=_panel_regimes("cfrp"),
+        default_angle_cap=65.0,
+        notice=_TRIPLE_WALL_NOTICE,
+    ),
+    "christiansen_2009_mli": _EquationSpec(
+        function=christiansen_2009_mli,
+        reference=(
+            "E. L. Christiansen et al., \"Handbook for Designing MMOD Protection,\" "
+            "NASA/TM-2009-214785, 2009"
+        ),
+        status=_SECOND_HAND,
+        validity=_BLANKET_SPEED.describe(),
+        quantities=(
+            _Quantity("wall_thickness", "cm", "aluminium wall thickness"),
+            _Quantity("wall_density", "g cm⁻³", "wall density (areal density only)",
+                      "wall_material", "density"),
+            _Quantity("blanket_areal_density", "g cm⁻²", "areal density of the blanket",
+                      default=blanket.TESTED_BLANKET_AREAL_DENSITY),
+        ),
+        material_keys=("wall_material",),
+        build=_build_blanket,
+        ranges=lambda parameters: (_BLANKET_SPEED,),
+        regimes=_blanket_regimes,
+        notice=(
+            f"christiansen_2009_mli holds only for the tested build-up (a "
+            f"{blanket.TESTED_BLANKET_AREAL_DENSITY} g cm⁻² blanket "
+            f"{blanket.TESTED_BLANKET_STANDOFF} cm in front of an aluminium wall): its "
+            f"high-speed branch has no standoff or blanket term"
         ),
     ),
     "tabulated_diameter": _EquationSpec(

@@ -8,8 +8,8 @@ christiansen_1995
     aluminium rear wall; failure = perforation or detached spall of the rear wall. Domain:
     aluminium spheres, obliquities up to about 65°.
 
-The multi-shock shield equations of the same paper are not implemented: their constants
-could not be read in a source (see the shared reference note on ballistic limits, §2.5).
+The multi-shock shield equation of the same paper is in
+:mod:`pockmark.ballistics.multi_shock`.
 """
 
 import numpy as np
@@ -175,6 +175,14 @@ def christiansen_1995(
     independent check. In particular, with :math:`m_b \to 0` it does **not** reduce to the
     single-wall equation (:func:`~pockmark.ballistics.cour_palais_1987` gives a critical
     diameter about 0.7 times as large for a 40 ksi aluminium wall at normal incidence).
+    A later comparison with a second-hand transcription (an open-source library of
+    ballistic-limit equations by S. Ryan, pyBLOSSUM, commit c9aa929, citing a 2001 paper by
+    Christiansen and Kerr and the 2009 NASA handbook) agrees on the high-speed branch, the
+    regime limits, the factor 0.37 and on :math:`m_b` being the total in front of the rear
+    wall, but writes the low-speed branch as :math:`2.35\,[\ldots]` with no 18/19 power
+    (1–6 % larger :math:`d_c`), and lowers the high-speed coefficient to 0.45 when the
+    blanket is 10–15 % of the shield's areal density. Which form the 1995 paper prints was
+    not settled; the recalled one is kept and is the more conservative of the two.
 
     **Angle dependence.** Low speed :math:`\propto \cos^{-24/19}\theta`; high speed
     :math:`\propto \cos^{-1/2}\theta`. In the intermediate regime both anchors and both

@@ -142,7 +142,13 @@ def christiansen_1993(
     when this was written, so equation numbers are not given. Two independent cross-checks
     hold: the sizing equation of [1]_ with :math:`c_w = 0.16` inverts to 3.9177, and the
     single-wall prefactor of :func:`~pockmark.ballistics.cour_palais_1987` for Al 6061-T6
-    (0.619) is within 3 % of 0.6.
+    (0.619) is within 3 % of 0.6. Later the form and every constant were found the same in
+    a second-hand transcription (an open-source library of ballistic-limit equations by
+    S. Ryan, pyBLOSSUM, commit c9aa929), whose stored results on three published shots this
+    function reproduces to ten digits (tests/reference/test_christiansen_1993.py). That
+    transcription caps the obliquity at 65° (set ``angle_cap = 65`` on the shield to do the
+    same) and records that later JSC practice moved the hypervelocity limit to 8.5–9.1 km s⁻¹
+    for projectiles denser than aluminium; neither is applied here by default.
 
     **Angle dependence.** The ballistic branch scales as :math:`\cos^{-30/19}\theta`
     (diverging at grazing incidence) and the hypervelocity branch as

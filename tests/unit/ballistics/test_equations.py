@@ -44,6 +44,51 @@ PARAMETERS = {
         "rear_wall_density": 2.84,
         "rear_wall_yield_strength": 393.0,
     },
+    "christiansen_1995_multi_shock": {
+        "bumper_areal_density": 0.4,
+        "standoff": 15.0,
+        "rear_wall_thickness": 0.16,
+        "rear_wall_density": 2.84,
+        "rear_wall_yield_strength": 393.0,
+    },
+    "ryan_2008_aluminium": {
+        "front_sheet_thickness": 0.04,
+        "front_sheet_density": 2.7,
+        "core_thickness": 2.54,
+        "rear_sheet_thickness": 0.04,
+        "rear_sheet_yield_strength": 276.0,
+        "mli_areal_density": 0.05,
+    },
+    "ryan_2008_cfrp": {
+        "front_sheet_thickness": 0.162,
+        "front_sheet_density": 1.83,
+        "core_thickness": 4.5,
+        "rear_sheet_thickness": 0.162,
+        "rear_sheet_density": 1.83,
+        "mli_areal_density": 0.05,
+    },
+    "schafer_2008_aluminium": {
+        "outer_sheet_thickness": 0.041,
+        "core_thickness": 3.5,
+        "inner_sheet_thickness": 0.041,
+        "inner_sheet_density": 2.7,
+        "gap": 30.0,
+        "wall_thickness": 0.15,
+        "wall_yield_strength": 250.0,
+        "mli_areal_density": 0.0447,
+    },
+    "schafer_2008_cfrp": {
+        "outer_sheet_thickness": 0.1,
+        "outer_sheet_density": 1.6,
+        "core_thickness": 3.0,
+        "inner_sheet_thickness": 0.1,
+        "inner_sheet_density": 1.6,
+        "gap": 20.0,
+        "wall_thickness": 0.15,
+        "wall_yield_strength": 276.0,
+        "mli_areal_density": 0.05,
+    },
+    "christiansen_2009_mli": {"wall_thickness": 0.1, "blanket_areal_density": 0.188},
     "sandwich_summed_face_sheets": {
         "face_sheets_areal_density": 0.217,
         "wall_density": 2.713,
@@ -67,9 +112,11 @@ PARAMETERS = {
 }
 
 ALL = sorted(EQUATIONS)
-# Parameters that are scalars (the table of tabulated_diameter is tested on its own).
+# Parameters that may be zero (an absent layer); every other scalar must be positive.
+NONNEGATIVE = {"mli_areal_density"}
+# Parameters that are positive scalars (the table of tabulated_diameter is tested on its own).
 SCALAR = {
-    name: [p for p, value in parameters.items() if np.ndim(value) == 0]
+    name: [p for p, value in parameters.items() if np.ndim(value) == 0 and p not in NONNEGATIVE]
     for name, parameters in PARAMETERS.items()
 }
 
@@ -203,6 +250,17 @@ def test_impossible_shield_parameter_raises(name, parameter, bad):
         _call(name, 7.0, 0.0, 2.8, **{parameter: bad})
 
 
+@pytest.mark.parametrize(
+    "name", [name for name in ALL if NONNEGATIVE & set(PARAMETERS[name])]
+)
+def test_absent_layer_may_be_zero_but_not_negative(name):
+    (parameter,) = NONNEGATIVE & set(PARAMETERS[name])
+    assert np.isfinite(_call(name, 7.0, 0.0, 2.8, **{parameter: 0.0}))
+    for bad in (-1.0, np.nan, np.inf):
+        with pytest.raises(InputError, match=f"{parameter} must be zero or positive"):
+            _call(name, 7.0, 0.0, 2.8, **{parameter: bad})
+
+
 @pytest.mark.parametrize("name", [name for name in ALL if SCALAR[name]])
 def test_shield_parameters_broadcast(name):
     parameter = SCALAR[name][0]
@@ -210,7 +268,8 @@ def test_shield_parameters_broadcast(name):
     column = np.array([[value], [2 * value]])
     got = _call(name, np.array([5.0, 8.0]), 0.0, 2.8, **{parameter: column})
     assert got.shape == (2, 2)
-    np.testing.assert_array_equal(got[0], _call(name, np.array([5.0, 8.0]), 0.0, 2.8))
+    # Equal up to rounding: numpy may order a broadcast product differently.
+    np.testing.assert_allclose(got[0], _call(name, np.array([5.0, 8.0]), 0.0, 2.8), rtol=1e-14)
 
 
 # --- threshold_diameter -----------------------------------------------------------------------
@@ -424,6 +483,8 @@ def test_docstring_states_provenance_units_and_range(name):
     assert "Notes" in doc and ("Validity range" in doc or "Range" in doc or "no validity" in doc)
     if name in {"cour_palais_1987", "christiansen_1993", "christiansen_1995"}:
         assert "from memory" in doc and "References" in doc
+    elif name.split("_")[0] in {"christiansen", "ryan", "schafer"}:
+        assert "second-hand transcription" in doc and "References" in doc
     elif name.startswith("sandwich_"):
         assert "no source" in doc or "NON-conservative" in doc
     else:
