@@ -126,8 +126,12 @@ def _three_regimes(velocity, low_limit, high_limit, low_speed, high_speed):
     ``low_speed(v)`` below ``low_limit``, ``high_speed(v)`` above ``high_limit`` and, between
     them, the straight line in speed from ``low_speed(low_limit)`` to
     ``high_speed(high_limit)``. The anchors are the end equations evaluated at the limits, so
-    the result is continuous by construction. Call inside ``np.errstate`` where the branches
-    can divide by zero (grazing angles, zero speed).
+    the result is continuous by construction wherever ``low_limit < high_limit``. Where an
+    equation's angle-dependent limits cross (near grazing incidence), there is no
+    intermediate regime: the low-speed branch holds up to ``low_limit`` and the high-speed
+    one above it, with a jump at ``low_limit``, as the sources' regime tests read.
+    Call inside ``np.errstate`` where the branches can divide by zero (grazing angles, zero
+    speed).
     """
     low_anchor = low_speed(low_limit)
     high_anchor = high_speed(high_limit)

@@ -91,9 +91,14 @@ def christiansen_2009_mli(
         d_{\mathrm{HV}} = 2.9\, \frac{t_w^{2/3}}{\rho_p^{1/3} V^{2/3} \cos^{2/3}\theta}
 
     and a straight line in :math:`V` between the end equations at the limits (continuous by
-    construction). The hypervelocity branch has no standoff, strength or blanket term: it
-    holds only for the tested build-up, a 0.188 g cm⁻² blanket 1.5 cm in front of the wall;
-    shields built with :func:`~pockmark.ballistics.make_shield` warn about this.
+    construction). Above 80° the limits cross (:math:`V_L > V_H`): there is no intermediate
+    regime and :math:`d_c` drops at :math:`V_L` (by 25 % at 81°). Shields built with
+    :func:`~pockmark.ballistics.make_shield` therefore cap the obliquity at 75° by default
+    (common practice, no source).
+
+    The hypervelocity branch has no standoff, strength or blanket term: it holds only for
+    the tested build-up, a 0.188 g cm⁻² blanket 1.5 cm in front of the wall; shields built
+    with :func:`~pockmark.ballistics.make_shield` warn about this.
 
     **Provenance.** Form and constants (1.7, 0.37, 2.9, 2.5, 6 and the exponents) were read
     in a second-hand transcription: an open-source library of ballistic-limit equations by

@@ -98,10 +98,14 @@ def christiansen_1995_multi_shock(
             {\rho_p^{1/3} V^{1/3} \cos^{1/3}\theta}
 
     and a straight line in :math:`V` between the end equations evaluated at the limits
-    (continuous by construction). Unlike the Whipple equation, the low-speed branch has no
-    18/19 power. The structure is that of the stuffed-Whipple equation
-    (:func:`~pockmark.ballistics.christiansen_1995`), with the fabric bumpers as the front
-    areal density.
+    (continuous by construction). Above 88.9° the limits cross (:math:`V_L > V_H`): there
+    is no intermediate regime and :math:`d_c` drops at :math:`V_L`. Shields built with
+    :func:`~pockmark.ballistics.make_shield` cap the obliquity at 75° by default, as the
+    transcription does for the related hybrid multi-shock shield.
+
+    Unlike the Whipple equation, the low-speed branch has no 18/19 power. The structure is
+    that of the stuffed-Whipple equation (:func:`~pockmark.ballistics.christiansen_1995`),
+    with the fabric bumpers as the front areal density.
 
     **Provenance.** The form and constants (2.0, 0.358, 0.37, 2.4, 6.4 and the exponents)
     were read in a second-hand transcription: an open-source library of ballistic-limit

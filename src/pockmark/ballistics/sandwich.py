@@ -384,7 +384,7 @@ def ryan_2008_aluminium(
     -----
     Aluminium face sheets: :math:`K_{3S} = 1.4`, :math:`V_{LV} = 3`,
     :math:`V_{HV} = 7` km s⁻¹, :math:`\delta = 5/4` for 45° < θ < 65° and 4/3 elsewhere, so
-    :math:`d_c` jumps where δ changes (by about −2 % at 45° and +7 to +8 % at 65° in the
+    :math:`d_c` jumps where δ changes (by about −3 % at 45° and +7 % at 65° in the
     end branches); the source fits it so.
 {ryan}
     **Validity range.** Aluminium projectiles on panels of a few tenths of a millimetre to

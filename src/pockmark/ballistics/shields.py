@@ -855,6 +855,7 @@ _SPECS = {
         build=_build_multi_shock,
         ranges=lambda parameters: (_MULTI_SHOCK_ANGLE, _MULTI_SHOCK_SPEED),
         regimes=_multi_shock_regimes,
+        default_angle_cap=75.0,
     ),
     "ryan_2008_aluminium": _EquationSpec(
         function=ryan_2008_aluminium,
@@ -923,6 +924,7 @@ _SPECS = {
         build=_build_blanket,
         ranges=lambda parameters: (_BLANKET_SPEED,),
         regimes=_blanket_regimes,
+        default_angle_cap=75.0,
         notice=(
             f"christiansen_2009_mli holds only for the tested build-up (a "
             f"{blanket.TESTED_BLANKET_AREAL_DENSITY} g cm⁻² blanket "

@@ -94,8 +94,10 @@ _SRL_NOTES = r"""
 
     below :math:`V_{LV}/\cos\theta` and above :math:`V_{HV}/\cos\theta`, a straight line in
     :math:`V` between the end equations at the limits (continuous by construction). With no
-    gap and :math:`K_{tw} = 1` the hypervelocity branch is that of
-    :func:`~pockmark.ballistics.ryan_2008_aluminium` for a rear sheet of :math:`t_i + t_w`.
+    gap the hypervelocity branch is that of the panel alone
+    (:func:`~pockmark.ballistics.ryan_2008_aluminium` or
+    :func:`~pockmark.ballistics.ryan_2008_cfrp`) with a rear sheet of
+    :math:`t_i + K_{tw} t_w` and the inner sheet's density in place of the front sheet's.
     The source caps the obliquity at 65°; shields built with
     :func:`~pockmark.ballistics.make_shield` apply that cap by default.
 

@@ -113,6 +113,15 @@ CFRP_TRIPLE_WALL = {**TRIPLE_WALL, "equation": "schafer_2008_cfrp",
                     "outer_sheet_material": "CFRP", "inner_sheet_material": "CFRP"}
 BLANKET = {"equation": "christiansen_2009_mli", "wall_thickness": 0.1,
            "wall_material": "Al6061-T6"}
+# Default obliquity caps: the triple-wall source evaluates larger angles at 65° (read
+# second-hand); multi-shock and blanket shields stop short of the angles where their regime
+# limits cross (75°, common practice, no source).
+DEFAULT_CAPS = {
+    "schafer_2008_aluminium": 65.0,
+    "schafer_2008_cfrp": 65.0,
+    "christiansen_1995_multi_shock": 75.0,
+    "christiansen_2009_mli": 75.0,
+}
 EXAMPLES = {
     "christiansen_1995_multi_shock": MULTI_SHOCK,
     "ryan_2008_aluminium": AL_HONEYCOMB,
@@ -655,9 +664,8 @@ def test_yield_strength_from_material_is_mpa():
 @pytest.mark.parametrize("name", sorted(EQUATIONS))
 def test_no_cap_by_default(name):
     shield = make_shield("s", EXAMPLES[name])
-    if name.startswith("schafer_2008"):
-        # The triple-wall source evaluates larger angles at 65° (read second-hand).
-        assert shield.angle_cap == 65.0
+    if name in DEFAULT_CAPS:
+        assert shield.angle_cap == DEFAULT_CAPS[name]
         return
     assert shield.angle_cap is None
     angles = np.array([10.0, 70.0, 85.0])
@@ -825,8 +833,7 @@ def test_describe_equations_status_validity_and_cap():
     assert "practice" in descriptions["sandwich_summed_face_sheets"]["status"]
     assert "from memory" in descriptions["christiansen_1995"]["status"]
     for name, description in descriptions.items():
-        expected_cap = 65.0 if name.startswith("schafer_2008") else None
-        assert description["default_angle_cap"] == expected_cap
+        assert description["default_angle_cap"] == DEFAULT_CAPS.get(name)
         assert description["validity"]
         assert "angle_cap" in description["keys"]
     assert descriptions["christiansen_1993"]["options"][0]["name"] == "mli_treatment"
