@@ -325,8 +325,9 @@ _RYAN_NOTES = r"""
 
     **Provenance.** The form and every constant (0.4, 1.1/1.4, 4.2/8.4 and 3/7 km s⁻¹, the
     exponent δ, 2.78 g cm⁻³, 59.5 ksi, the MLI factor 3) were read in a
-    second-hand transcription: an open-source library of ballistic-limit equations written by S. Ryan,
-    a co-author of [1]_, whose code cites [1]_ (pyBLOSSUM, MIT licence, commit c9aa929);
+    second-hand transcription: an open-source library of ballistic-limit equations written
+    by S. Ryan, a co-author of [1]_, whose code cites [1]_ (pyBLOSSUM, MIT licence, commit
+    c9aa929);
     not on the printed pages of [1]_. The check against published tests
     (tests/reference/test_ryan_2008.py) uses shots of [2]_ and [3]_.
 """

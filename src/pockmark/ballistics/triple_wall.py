@@ -59,7 +59,8 @@ def _triple_wall(velocity, angle, density, outer_thickness, inner_thickness, inn
 
     def high_speed(v):
         spacing = (
-            core_thickness ** (1.0 / 3.0) * (inner_thickness + k_wall * wall_thickness) ** (2.0 / 3.0)
+            core_thickness ** (1.0 / 3.0)
+            * (inner_thickness + k_wall * wall_thickness) ** (2.0 / 3.0)
             + k_gap * gap**beta * wall_thickness**gamma * cos_angle ** (-epsilon)
         )
         return (
