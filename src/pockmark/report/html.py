@@ -69,6 +69,19 @@ REFERENCES = (
     'R. Carriere, A. Cherniaev, "Hypervelocity impacts on satellite sandwich structures — a '
     'review of experimental findings and predictive models," Applied Mechanics 2:25–45, 2021, '
     "doi:10.3390/applmech2010003.",
+    'B. G. Cour-Palais, J. L. Crews, "A multi-shock concept for spacecraft shielding," Int. J. '
+    "Impact Engineering 10:135–146, 1990.",
+    'S. Ryan, F. Schäfer, R. Destefanis, M. Lambert, "A ballistic limit equation for '
+    'hypervelocity impacts on composite honeycomb sandwich panel satellite structures," '
+    "Advances in Space Research 41:1152–1166, 2008, doi:10.1016/j.asr.2007.02.032.",
+    'F. Schäfer, S. Ryan, M. Lambert, R. Putzar, "Ballistic limit equation for equipment placed '
+    'behind satellite structure walls," Int. J. Impact Engineering 35:1784–1791, 2008, '
+    "doi:10.1016/j.ijimpeng.2008.07.074.",
+    "E. L. Christiansen et al., Handbook for Designing MMOD Protection, NASA/TM-2009-214785, "
+    "2009.",
+    "S. Ryan, pyBLOSSUM, an open-source library of ballistic-limit equations (MIT licence, "
+    "commit c9aa929): the transcription in which the constants of 16–19 were read, and the "
+    "compiled shots used as checks.",
 )
 
 
