@@ -36,6 +36,7 @@ from pockmark.environment import kessler_1991 as _kessler
 from pockmark.environment.debris_directions import _population, debris_direction_distribution
 from pockmark.environment.directions import fibonacci_directions_above
 from pockmark.environment.grun_1985 import grun_1985
+from pockmark.environment.motion import to_moving_frame
 from pockmark.environment.meteoroid_speed import (
     RAW_NORMALISATION_NASA,
     speed_bins_ecss_2008,
@@ -91,10 +92,12 @@ def _debris_omnidirectional(flux, diameter):
 
 
 def _meteoroid_omnidirectional(flux, diameter):
-    """Φ0 = 4 G F_grun_1985(π/6 ρ d³) [m⁻² yr⁻¹] for the stored focusing factor and density."""
+    """Φ0 = 4 G K F_grun_1985(π/6 ρ d³) [m⁻² yr⁻¹] for the stored focusing factor, motion
+    gain K (1 at rest) and density."""
     d = _positive_diameter(diameter)
     mass = np.pi / 6.0 * flux.projectile_density * d**3
-    return 4.0 * flux.parameters["focusing_factor"] * np.asarray(grun_1985(mass))
+    gain = flux.parameters.get("motion_factor", 1.0)
+    return 4.0 * flux.parameters["focusing_factor"] * gain * np.asarray(grun_1985(mass))
 
 
 def tabulated_cumulative_flux(diameters, fluxes, diameter, label="user_table"):
@@ -323,6 +326,19 @@ class DirectionalFlux:
         return float(self.weights.sum(axis=0) @ self.speeds / total) if total > 0 else 0.0
 
 
+#: How much finer the rest-frame direction grid is than the output grid of a moving vehicle,
+#: so that each output cell collects many moved cells (measured: the flux on a ram or wake
+#: plate then agrees with the closed form to 0.3 % at 600 output directions).
+_MOTION_REFINEMENT = 8
+
+
+def _vehicle_speed(value):
+    speed = _scalar("vehicle_speed", value, "km s⁻¹")
+    if not (np.isfinite(speed) and speed >= 0.0):
+        raise InputError(f"vehicle_speed must be ≥ 0 and finite [km s⁻¹]; got {speed:g}")
+    return speed
+
+
 def _scalar(name, value, unit):
     if np.ndim(value):
         raise InputError(f"{name} must be a scalar [{unit}]; got shape {np.shape(value)}")
@@ -450,6 +466,7 @@ def meteoroid_flux(
     speed_bin_width=1.0,
     earth_shielding=True,
     focusing="nasa_1994",
+    vehicle_speed=0.0,
 ):
     """Directional meteoroid flux for a circular Earth orbit, Grün et al. (1985) model.
 
@@ -469,6 +486,13 @@ def meteoroid_flux(
         ``False`` keeps the whole sphere; for tests and for comparison only.
     focusing : {"nasa_1994", "ecss_2008"}
         Gravitational focusing convention (see Notes). Default ``"nasa_1994"``.
+    vehicle_speed : float
+        Speed of the vehicle along its flight direction :math:`+\\hat x` [km s⁻¹], ≥ 0.
+        0 (default): the flux as it is at rest with the Earth. A positive speed gives the
+        flux the moving vehicle meets (:func:`~pockmark.environment.motion.to_moving_frame`):
+        more and faster particles on ram faces, fewer and slower on wake faces, the arrival
+        directions tilted toward the flight direction, and the total multiplied by the gain
+        ``parameters["motion_factor"]``.
 
     Returns
     -------
@@ -502,15 +526,19 @@ def meteoroid_flux(
 
     Common to both:
 
-    * magnitude :math:`\\Phi_0(\\ge d) = 4\\,G\\,F_{grun\\_1985}(\\pi\\rho d^3/6)`;
+    * magnitude :math:`\\Phi_0(\\ge d) = 4\\,G\\,K\\,F_{grun\\_1985}(\\pi\\rho d^3/6)`, with
+      :math:`K` the gain from the vehicle's motion (1 at rest);
     * Earth shielding by removing the cone of half-angle :math:`\\eta` about nadir
       (:math:`-\\hat z`), :math:`\\sin\\eta = (R_E + 100\\ \\mathrm{km})/(R_E + h)`; the
       orientation average then reproduces :math:`s_f = (1 + \\cos\\eta)/2`, a zenith-facing
       plate keeps its whole flux and a nadir-facing plate :math:`\\cos^2\\eta` of it;
-    * speeds independent of direction;
-    * arrival directions otherwise isotropic **in the vehicle frame**. This version has no
-      asymmetry from the spacecraft's own motion (more flux on ram faces than on wake faces,
-      the ECSS :math:`K` factor, about 1.08 on average).
+    * at rest (``vehicle_speed = 0``): speeds independent of direction and arrival directions
+      isotropic apart from the Earth's cone;
+    * moving: the rest-frame flux is built on a grid 8 times finer, then each cell is moved
+      into the vehicle's frame and re-binned on the ``directions`` grid over the whole
+      sphere and on speed bins of ``speed_bin_width`` (see
+      :func:`~pockmark.environment.motion.to_moving_frame`); the Earth's cone is cut in the
+      rest frame, where the Earth blocks the paths.
 
     The directions are the Fibonacci lattice with its axis along :math:`\\hat z`, cut exactly
     at the cone (:func:`~pockmark.environment.directions.fibonacci_directions_above`): the one
@@ -530,8 +558,10 @@ def meteoroid_flux(
             f"{', '.join(FOCUSING_CONVENTIONS)}"
         )
     z_min = -np.cos(np.radians(eta)) if earth_shielding else -1.0
-    units, fractions = fibonacci_directions_above(directions, z_min)
-    count = int(directions)
+    count = int(directions) if isinstance(directions, (int, np.integer)) else directions
+    moving = _vehicle_speed(vehicle_speed) > 0.0
+    units, fractions = fibonacci_directions_above(
+        _MOTION_REFINEMENT * count if moving and isinstance(count, int) else count, z_min)
     if focusing == "nasa_1994":
         speeds, probabilities = speed_bins_nasa(speed_bin_width)
         factor = focusing_factor_nasa(h)
@@ -543,6 +573,10 @@ def meteoroid_flux(
             "altitude (ECSS Annex C.1.2 mapping; free-space distribution derived by pockmark)"
         )
     weights = np.outer(fractions, probabilities)
+    gain = 1.0
+    if moving:
+        units, speeds, weights, gain = to_moving_frame(
+            units, fractions, speeds, probabilities, vehicle_speed, count, speed_bin_width)
     parameters = {
         "altitude": h,
         "focusing": focusing,
@@ -556,7 +590,13 @@ def meteoroid_flux(
         "speed_distribution": distribution,
         "speed_distribution_raw_integral": RAW_NORMALISATION_NASA,
         "speed_bin_width": float(speed_bin_width),
-        "directionality": "isotropic in the vehicle frame, no spacecraft-motion asymmetry",
+        "vehicle_speed": float(vehicle_speed),
+        "motion_factor": gain,
+        "directionality": (
+            f"rest-frame isotropic flux seen from a vehicle moving at {float(vehicle_speed):g} "
+            f"km/s along +x (flux gain {gain:.4f})" if moving
+            else "isotropic at rest with the Earth (vehicle motion not applied)"
+        ),
         "frame": "local orbital: x flight direction, z zenith, y = z x x; directions toward source",
     }
     return DirectionalFlux(

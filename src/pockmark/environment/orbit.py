@@ -62,6 +62,28 @@ def circular_speed(altitude):
     return speed if speed.ndim else float(speed)
 
 
+def orbital_speed(altitude, perigee_altitude, apogee_altitude):
+    """Speed on an elliptical (or circular) Earth orbit at a given altitude (vis-viva).
+
+    Parameters
+    ----------
+    altitude : numeric
+        Altitude on the orbit [km], between perigee and apogee.
+    perigee_altitude, apogee_altitude : float
+        Altitudes of perigee and apogee above the Earth's equatorial radius [km].
+
+    Returns
+    -------
+    float or ndarray
+        :math:`v = \\sqrt{\\mu (2/r - 1/a)}` [km s⁻¹] with :math:`r = R_E + h` and
+        :math:`a = R_E + (h_p + h_a)/2`; equals :func:`circular_speed` on a circular orbit.
+    """
+    h = _altitude_array(altitude)
+    a = EARTH_RADIUS + 0.5 * (float(perigee_altitude) + float(apogee_altitude))
+    speed = np.sqrt(EARTH_MU * (2.0 / (EARTH_RADIUS + h) - 1.0 / a))
+    return speed if speed.ndim else float(speed)
+
+
 def focusing_factor_nasa(altitude):
     """Gravitational focusing factor of the meteoroid flux, simplified engineering convention.
 

@@ -58,7 +58,7 @@ from pockmark.environment.kessler_1991 import (
     _check_epoch,
     _warn,
 )
-from pockmark.environment.orbit import elliptical_orbit_samples
+from pockmark.environment.orbit import elliptical_orbit_samples, orbital_speed
 from pockmark.environment.tables import table_fluxes
 from pockmark.errors import InputError, ModelRangeWarning
 from pockmark.geometry.frames import ATTITUDE_AXES, body_from_orbital, spin_rotations
@@ -186,10 +186,15 @@ class MeteoroidSpec:
     focusing : {"nasa_1994", "ecss_2008"}
         Gravitational focusing convention (see
         :func:`~pockmark.environment.flux.meteoroid_flux`). Default ``"nasa_1994"``.
+    vehicle_motion : bool
+        Apply the vehicle's orbital velocity (vis-viva speed at each orbit sample, along the
+        flight direction): ram faces meet more and faster meteoroids than wake faces.
+        Default ``True``; ``False`` keeps the flux as it is at rest with the Earth.
     """
 
     projectile_density: float = 1.0
     focusing: str = "nasa_1994"
+    vehicle_motion: bool = True
 
 
 # ----------------------------------------------------------------------------- validation
@@ -480,9 +485,15 @@ def _debris(phase, spec, samples, azimuth_bins):
 
 
 def _merge_meteoroids(fluxes, fractions, samples):
-    """One flux for the orbit samples of a meteoroid source (exact; see phase_fluxes)."""
-    factors = np.array([f.parameters["focusing_factor"] for f in fluxes])
+    """One flux for the orbit samples of a meteoroid source (exact; see phase_fluxes).
+
+    The samples differ by the scalar G·K (focusing times motion gain) and by their weights;
+    the merged flux keeps the time-weighted mean G as its focusing factor and puts the rest
+    of the mean G·K in its motion gain."""
+    focusing = np.array([f.parameters["focusing_factor"] for f in fluxes])
+    factors = focusing * np.array([f.parameters.get("motion_factor", 1.0) for f in fluxes])
     mean_factor = float(np.dot(fractions, factors))
+    mean_focusing = float(np.dot(fractions, focusing))
     directions, row_of = np.unique(np.concatenate([f.directions for f in fluxes]), axis=0,
                                    return_inverse=True)
     speeds, column_of = np.unique(np.concatenate([f.speeds for f in fluxes]), return_inverse=True)
@@ -498,18 +509,27 @@ def _merge_meteoroids(fluxes, fractions, samples):
     described = [
         {"true_anomaly": float(nu), "altitude": float(h), "time_fraction": float(fraction),
          "focusing_factor": float(flux.parameters["focusing_factor"]),
+         "vehicle_speed": float(flux.parameters.get("vehicle_speed", 0.0)),
+         "motion_factor": float(flux.parameters.get("motion_factor", 1.0)),
          "earth_shielding_factor": float(flux.parameters["earth_shielding_factor"])}
         for nu, h, fraction, flux in zip(*samples, fluxes, strict=True)
     ]
     first = fluxes[0]
     parameters = {k: v for k, v in first.parameters.items()
                   if k not in ("altitude", "earth_shielding_half_angle", "earth_shielding_factor",
-                               "directions_kept", "orbit_sample")}
+                               "directions_kept", "orbit_sample", "vehicle_speed",
+                               "directionality")}
     parameters.update(
-        focusing_factor=mean_factor,
+        focusing_factor=mean_focusing,
+        motion_factor=mean_factor / mean_focusing,
+        directionality=(
+            "rest-frame isotropic flux seen from the moving vehicle, at the orbit's speed at "
+            "each sample (see orbit_samples)" if fluxes[0].parameters.get("vehicle_speed")
+            else fluxes[0].parameters["directionality"]),
         orbit_samples=described,
-        orbit_merge="samples merged: weights x time fraction x G(h)/mean G, size distribution "
-                    "x mean G (exact: the samples differ only by the scalar G and the weights)",
+        orbit_merge="samples merged: weights x time fraction x G(h)K(h)/mean GK, size "
+                    "distribution x mean GK (exact: the samples differ only by the scalar GK and "
+                    "the weights)",
     )
     return DirectionalFlux(first.source, first.model, directions, speeds, weights,
                            first.projectile_density, parameters)
@@ -523,11 +543,14 @@ def _meteoroids(phase, spec, samples, directions, attitude, rotation):
         )
     per_sample = []
     for altitude in samples[1]:
+        speed = (orbital_speed(altitude, phase.perigee_altitude, phase.apogee_altitude)
+                 if spec.vehicle_motion else 0.0)
         flux = meteoroid_flux(
             altitude=float(altitude),
             projectile_density=spec.projectile_density,
             directions=directions,
             focusing=spec.focusing,
+            vehicle_speed=speed,
         )
         per_sample.append(_to_body(flux, attitude, rotation, directions))
     if len(per_sample) == 1:

@@ -59,6 +59,7 @@ class MeteoroidSettings:
     model: str
     projectile_density: float  # [g cm⁻³]
     focusing: str = "nasa_1994"
+    vehicle_motion: bool = True  # seen from the moving vehicle (ram/wake asymmetry)
 
 
 @dataclass(frozen=True)
@@ -665,6 +666,7 @@ def load_case(path):
         meteoroid = MeteoroidSettings(
             model=reader.get("model", str, default="grun_1985", check=_choice(("grun_1985",))),
             projectile_density=reader.get("projectile_density", float, default=1.0, check=_positive),
+            vehicle_motion=reader.get("vehicle_motion", bool, default=True),
         )
         reader.finish()
     environment.used.add("tables")

@@ -128,7 +128,8 @@ def build_fluxes(case, index):
         debris = environment.DebrisSpec(**options)
     if case.meteoroid is not None:
         meteoroid = environment.MeteoroidSpec(
-            projectile_density=case.meteoroid.projectile_density, focusing=case.meteoroid.focusing
+            projectile_density=case.meteoroid.projectile_density, focusing=case.meteoroid.focusing,
+            vehicle_motion=case.meteoroid.vehicle_motion,
         )
     try:
         tables = tuple(load_environment_table(path) for path in case.environment_tables)

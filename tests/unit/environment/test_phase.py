@@ -14,7 +14,12 @@ from pockmark.environment import (
 )
 from pockmark.environment import phase as phase_module
 from pockmark.environment.debris_directions import mean_collision_speed
-from pockmark.environment.orbit import earth_shielding_factor, elliptical_orbit_samples
+from pockmark.environment.orbit import (
+    circular_speed,
+    earth_shielding_factor,
+    elliptical_orbit_samples,
+    orbital_speed,
+)
 from pockmark.environment.phase import (
     DEFAULT_SOLAR_FLUX,
     Attitude,
@@ -131,7 +136,11 @@ def test_circular_orbit_reproduces_the_circular_models():
     np.testing.assert_array_equal(debris.speeds, reference.speeds)
     d = np.array([0.05, 0.5])
     np.testing.assert_allclose(debris.cumulative_flux(d), reference.cumulative_flux(d), rtol=1e-14)
-    reference = meteoroid_flux(400.0)
+    # seen from the vehicle at its circular speed (vis-viva with a = r, equal to the circular
+    # formula to round-off)
+    speed = orbital_speed(400.0, 400.0, 400.0)
+    assert speed == pytest.approx(circular_speed(400.0), rel=1e-14)
+    reference = meteoroid_flux(400.0, vehicle_speed=speed)
     np.testing.assert_array_equal(meteoroids.directions, reference.directions)
     np.testing.assert_array_equal(meteoroids.weights, reference.weights)
     np.testing.assert_allclose(meteoroids.cumulative_flux(d), reference.cumulative_flux(d),
@@ -182,13 +191,18 @@ def test_elliptical_debris_one_flux_per_distinct_altitude():
     assert sum(f.weights.sum() for f in fluxes) == pytest.approx(1.0, abs=1e-12)
 
 
+@pytest.mark.parametrize("motion", [False, True])
 @pytest.mark.parametrize("focusing", ["nasa_1994", "ecss_2008"])
-def test_elliptical_meteoroids_merge_exactly(focusing):
-    """One merged flux gives the same face integrals as the time-weighted per-sample fluxes."""
+def test_elliptical_meteoroids_merge_exactly(focusing, motion):
+    """One merged flux gives the same face integrals as the time-weighted per-sample fluxes,
+    at rest and seen from the vehicle moving at the vis-viva speed of each sample."""
     phase = _phase(perigee_altitude=300.0, apogee_altitude=1500.0)
-    (merged,) = phase_fluxes(phase, meteoroid=MeteoroidSpec(focusing=focusing))["meteoroid"]
+    spec = MeteoroidSpec(focusing=focusing, vehicle_motion=motion)
+    (merged,) = phase_fluxes(phase, meteoroid=spec)["meteoroid"]
     nu, altitude, fraction = elliptical_orbit_samples(300.0, 1500.0, 8)
-    samples = [meteoroid_flux(h, focusing=focusing) for h in altitude]
+    samples = [meteoroid_flux(h, focusing=focusing,
+                              vehicle_speed=orbital_speed(h, 300.0, 1500.0) if motion else 0.0)
+               for h in altitude]
 
     def critical(speed):  # test double: d_c falls with speed (invented, not a shield)
         return 0.02 * (10.0 / speed) ** 1.5
@@ -216,7 +230,7 @@ def test_debris_discretisation_totals(inclination):
 @pytest.mark.parametrize("altitude", [300.0, 400.0, 800.0])
 def test_meteoroid_discretisation_totals(altitude):
     (flux,) = phase_fluxes(_phase(perigee_altitude=altitude, apogee_altitude=altitude),
-                           meteoroid=MeteoroidSpec())["meteoroid"]
+                           meteoroid=MeteoroidSpec(vehicle_motion=False))["meteoroid"]
     # shielded total weight = (1 + cos η)/2 (ECSS-E-ST-10-04C Annex C.1.3.1, environment.md
     # §2.3) to 0.1 % at the default 600-direction grid: the cone is cut exactly
     assert flux.weights.sum() == pytest.approx(earth_shielding_factor(altitude), rel=1e-3)

@@ -28,9 +28,19 @@ def test_valid_case_loads(folder):
     assert case.phases[0].start == dt.date(2030, 1, 1) and case.phases[0].attitude == "fixed"
     assert case.phases[0].start_year == 2030.0
     assert case.debris.projectile_density == 2.8  # default
+    assert case.meteoroid.vehicle_motion is True  # default
     assert case.analysis.directions == 200
     assert case.duration == 2.0
     assert set(case.shields) == {"hull", "panel"}
+
+
+def test_vehicle_motion_can_be_switched_off(folder):
+    line = "projectile_density = 1.0"
+    text = make_case_text(**{line: line + "\nvehicle_motion = false"})
+    assert load_case(write(folder, text)).meteoroid.vehicle_motion is False
+    text = make_case_text(**{line: line + '\nvehicle_motion = "no"'})
+    with pytest.raises(ConfigError, match="environment.meteoroid.vehicle_motion.*must be a bool"):
+        load_case(write(folder, text))
 
 
 def line_of(text, needle):
