@@ -78,7 +78,7 @@ from pockmark.ballistics.triple_wall import schafer_2008_aluminium, schafer_2008
 from pockmark.ballistics.whipple import christiansen_1993
 from pockmark.errors import InputError, ModelRangeWarning
 
-__all__ = ["Shield", "make_shield", "describe_equations", "MLI_TREATMENTS"]
+__all__ = ["Shield", "make_shield", "describe_equations", "layer_thicknesses", "MLI_TREATMENTS"]
 
 #: Converts thickness [cm] × density [g cm⁻³] = [g cm⁻²] to areal density [kg m⁻²].
 _G_PER_CM2_IN_KG_PER_M2 = 10.0
@@ -292,6 +292,8 @@ class _EquationSpec:
     regimes: object = None  # cos θ -> ((label, speed [km s⁻¹]), ...)
     default_angle_cap: float | None = None
     notice: str | None = None  # warning emitted whenever a shield uses this equation
+    # Thickness keys a trade study may scale, outermost layer first (resisting layers only).
+    layer_thicknesses: tuple = ()
 
 
 # Validity ranges, each with its provenance (shared reference note on ballistic limits).
@@ -689,6 +691,7 @@ _TRIPLE_WALL_NOTICE = (
 _SPECS = {
     "cour_palais_1987": _EquationSpec(
         function=cour_palais_1987,
+        layer_thicknesses=("wall_thickness",),
         reference=(
             "B. G. Cour-Palais, \"Hypervelocity impact in metals, glass and composites,\" "
             "Int. J. Impact Eng., vol. 5, pp. 221-237, 1987, doi:10.1016/0734-743X(87)90040-0; "
@@ -715,6 +718,7 @@ _SPECS = {
     ),
     "christiansen_1993": _EquationSpec(
         function=christiansen_1993,
+        layer_thicknesses=("bumper_thickness", "rear_wall_thickness"),
         reference=f"{_CHRISTIANSEN_1993}; {_TP_2003}",
         status="published (constants from memory)",
         validity=_WHIPPLE_SPEED.describe(),
@@ -741,6 +745,7 @@ _SPECS = {
     ),
     "christiansen_1995": _EquationSpec(
         function=christiansen_1995,
+        layer_thicknesses=("bumper_thickness", "rear_wall_thickness"),
         reference=(
             "E. L. Christiansen, J. L. Crews, J. E. Williamsen, J. H. Robinson and A. M. Nolen, "
             "\"Enhanced meteoroid and orbital debris shielding,\" Int. J. Impact Eng., vol. 17, "
@@ -783,6 +788,7 @@ _SPECS = {
     ),
     "sandwich_summed_face_sheets": _EquationSpec(
         function=sandwich_summed_face_sheets,
+        layer_thicknesses=("front_sheet_thickness", "rear_sheet_thickness"),
         reference=(
             "common practice, no source: face sheets as one wall of their summed areal density "
             f"(conservative bound), evaluated with cour_palais_1987; review of the published "
@@ -809,6 +815,7 @@ _SPECS = {
     ),
     "sandwich_whipple_approximation": _EquationSpec(
         function=sandwich_whipple_approximation,
+        layer_thicknesses=("front_sheet_thickness", "rear_sheet_thickness"),
         reference=(
             "common practice, no source: the panel as a Whipple shield (christiansen_1993), "
             f"known to be non-conservative; {_CARRIERE_2021}"
@@ -828,6 +835,7 @@ _SPECS = {
     ),
     "christiansen_1995_multi_shock": _EquationSpec(
         function=christiansen_1995_multi_shock,
+        layer_thicknesses=("rear_wall_thickness",),
         reference=(
             "B. G. Cour-Palais and J. L. Crews, \"A multi-shock concept for spacecraft "
             "shielding,\" Int. J. Impact Eng., vol. 10, pp. 135-146, 1990; equation of "
@@ -859,6 +867,7 @@ _SPECS = {
     ),
     "ryan_2008_aluminium": _EquationSpec(
         function=ryan_2008_aluminium,
+        layer_thicknesses=("front_sheet_thickness", "rear_sheet_thickness"),
         reference=_RYAN_2008,
         status=_SECOND_HAND,
         validity=_PANEL_SPEED.describe(),
@@ -870,6 +879,7 @@ _SPECS = {
     ),
     "ryan_2008_cfrp": _EquationSpec(
         function=ryan_2008_cfrp,
+        layer_thicknesses=("front_sheet_thickness", "rear_sheet_thickness"),
         reference=_RYAN_2008,
         status=_SECOND_HAND,
         validity=_PANEL_SPEED.describe(),
@@ -881,6 +891,7 @@ _SPECS = {
     ),
     "schafer_2008_aluminium": _EquationSpec(
         function=schafer_2008_aluminium,
+        layer_thicknesses=("wall_thickness",),
         reference=_SCHAFER_2008,
         status=_SECOND_HAND,
         validity=f"{_TRIPLE_ANGLE.describe()}; {_PANEL_SPEED.describe()}",
@@ -894,6 +905,7 @@ _SPECS = {
     ),
     "schafer_2008_cfrp": _EquationSpec(
         function=schafer_2008_cfrp,
+        layer_thicknesses=("wall_thickness",),
         reference=_SCHAFER_2008,
         status=_SECOND_HAND,
         validity=f"{_TRIPLE_ANGLE.describe()}; {_PANEL_SPEED.describe()}",
@@ -907,6 +919,7 @@ _SPECS = {
     ),
     "christiansen_2009_mli": _EquationSpec(
         function=christiansen_2009_mli,
+        layer_thicknesses=("wall_thickness",),
         reference=(
             "E. L. Christiansen et al., \"Handbook for Designing MMOD Protection,\" "
             "NASA/TM-2009-214785, 2009"
@@ -1222,6 +1235,23 @@ def make_shield(tag, definition, materials=None):
         ranges=tuple(ranges),
         notes=tuple(notes),
     )
+
+
+def layer_thicknesses(equation):
+    """Thickness keys of an equation's resisting layers, outermost first, for trade studies.
+
+    Parameters
+    ----------
+    equation : str
+        Registry key of the equation.
+
+    Returns
+    -------
+    tuple of str
+        Definition keys [cm] whose increase makes the shield stronger (bumper or front
+        sheet, rear or equipment wall); empty for tables and constant thresholds.
+    """
+    return _SPECS[equation].layer_thicknesses if equation in _SPECS else ()
 
 
 def describe_equations():

@@ -15,6 +15,7 @@ from pockmark.cli.environment import environment  # noqa: E402
 from pockmark.cli.limits import limits  # noqa: E402
 from pockmark.cli.report import report  # noqa: E402
 from pockmark.cli.run import run  # noqa: E402
+from pockmark.cli.trade import trade  # noqa: E402
 
 
 @click.group(context_settings={"help_option_names": ["-h", "--help"]})
@@ -34,6 +35,7 @@ cli.add_command(environment)
 cli.add_command(compare)
 cli.add_command(limits)
 cli.add_command(report)
+cli.add_command(trade)
 
 if __name__ == "__main__":
     cli()

@@ -19,7 +19,7 @@ from pockmark.errors import ConfigError
 from pockmark.geometry.frames import ATTITUDE_AXES
 from pockmark.geometry.units import LENGTH_UNITS
 
-_SECTIONS = {"title", "extends", "requirement", "uncertainty", "materials", "vehicle", "shields", "phases", "environment", "analysis", "components", "thin", "panels", "retag"}
+_SECTIONS = {"title", "extends", "requirement", "uncertainty", "materials", "vehicle", "shields", "phases", "environment", "analysis", "components", "thin", "panels", "retag", "upgrades"}
 
 
 @dataclass(frozen=True)
@@ -101,6 +101,16 @@ class Panel:
 
 
 @dataclass(frozen=True)
+class Upgrade:
+    """A candidate shield upgrade for ``pockmark trade``: one tag's shield changed."""
+
+    index: int  # position in the case's [[upgrades]] list, for messages
+    name: str
+    tag: str
+    definition: dict  # the tag's whole new shield definition (changes already applied)
+
+
+@dataclass(frozen=True)
 class Retag:
     """Give ``tag`` to the faces that meet every criterion that is set."""
 
@@ -140,6 +150,7 @@ class Case:
     thin: dict = None  # front tag -> back tag of open sheets exposed on both sides
     panels: tuple = ()
     retags: tuple = ()
+    upgrades: tuple = ()  # candidate shield upgrades (Upgrade) for `pockmark trade`
 
     @property
     def input_files(self):
@@ -444,6 +455,38 @@ def _load_retags(top, path, sources):
     return tuple(retags)
 
 
+def _load_upgrades(top, path, sources, shields):
+    top.used.add("upgrades")
+    entries = top.table.get("upgrades", [])
+    if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
+        top.fail("upgrades", "must be a list of [[upgrades]] tables")
+    upgrades = []
+    names = set()
+    for index, body in enumerate(entries):
+        reader = _Reader(path, sources, body, ("upgrades", index))
+        tag = reader.get("tag", str, hint=" naming the shield tag to upgrade")
+        if tag not in shields:
+            reader.fail("tag", f"no [shields.{tag}] table; choose one of: {', '.join(sorted(shields))}")
+        changes = reader.get("changes", dict, default=None)
+        shield = reader.get("shield", dict, default=None)
+        if (changes is None) == (shield is None):
+            reader.fail(None, "give either changes = { key = value, ... } (keys of the tag's shield to replace) "
+                        "or shield = { equation = ..., ... } (a whole new definition), not both")
+        if changes is not None and not changes:
+            reader.fail("changes", "is empty; name at least one key of the shield to change")
+        if changes is not None and "equation" in changes:
+            reader.fail("changes", "cannot change 'equation'; give a whole shield = { ... } instead")
+        definition = {**shields[tag], **changes} if changes is not None else dict(shield)
+        described = ", ".join(f"{k} = {v}" for k, v in (changes or {}).items()) or shield.get("equation", "new shield")
+        name = reader.get("name", str, default=f"{tag}: {described}")
+        if name in names:
+            reader.fail("name", f"repeats the upgrade name {name!r}; names must be unique")
+        names.add(name)
+        reader.finish()
+        upgrades.append(Upgrade(index=index, name=name, tag=tag, definition=definition))
+    return tuple(upgrades)
+
+
 #: Keys whose values are file paths, resolved against the file that states them before a
 #: variant is merged onto its base.
 _PATH_KEYS = (("vehicle", "mesh"), ("vehicle", "tags_file"), ("environment", "tables"))
@@ -492,10 +535,11 @@ def _absolute_paths(document, folder):
 
 
 def _merge(base, variant):
-    """The variant's tables override the base's key by key; [[panels]] and [[retag]] add to it."""
+    """The variant's tables override the base's key by key; [[panels]], [[retag]] and
+    [[upgrades]] add to the base's."""
     merged = dict(base)
     for key, value in variant.items():
-        if key in ("panels", "retag") and isinstance(value, list) and isinstance(base.get(key), list):
+        if key in ("panels", "retag", "upgrades") and isinstance(value, list) and isinstance(base.get(key), list):
             merged[key] = base[key] + value
         elif isinstance(value, dict) and isinstance(base.get(key), dict):
             merged[key] = _merge(base[key], value)
@@ -712,6 +756,7 @@ def load_case(path):
     thin = _load_thin(top, path, sources)
     panels = _load_panels(top, path, sources, length_unit)
     retags = _load_retags(top, path, sources)
+    upgrades = _load_upgrades(top, path, sources, shields)
     top.finish(_SECTIONS)
 
     return Case(
@@ -727,6 +772,7 @@ def load_case(path):
         thin=thin,
         panels=panels,
         retags=retags,
+        upgrades=upgrades,
         shields=shields,
         phases=tuple(phases),
         debris=debris,

@@ -62,20 +62,31 @@ class Assessment:
     breakdowns: dict  # per source: critical penetrations by particle size and by direction
     outside_validity: np.ndarray  # per tag: expected penetrations from impacts outside the equation's range
     timings: dict = field(default_factory=dict)
+    # Per flux integrated: {"phase", "source", "flux", "duration", "angle_exposure"}, the
+    # per-tag visible exposure × area at the angle nodes. With a shield's penetration_table
+    # it gives that tag's expected penetrations exactly as the run computed them, so other
+    # shields can be tried on a tag without tracing a ray (pockmark.risk.trade).
+    exposures: list = field(default_factory=list)
 
     @property
     def mesh(self):
         return self.vehicle.mesh
 
 
-def build_shields(case, mesh):
-    """Check the case's shield definitions against the ballistic library and the mesh tags."""
+def case_materials(case):
+    """The case's ``[materials.NAME]`` tables as :class:`~pockmark.ballistics.Material`."""
     materials = {}
     for name, properties in (case.materials or {}).items():
         try:
             materials[name] = make_material(name, properties)
         except InputError as error:
             raise ConfigError(f"{case.where('materials', name)}: {error}") from None
+    return materials
+
+
+def build_shields(case, mesh):
+    """Check the case's shield definitions against the ballistic library and the mesh tags."""
+    materials = case_materials(case)
     shields = {}
     for tag, definition in case.shields.items():
         try:
@@ -258,6 +269,7 @@ def assess(case, progress=None):
     environment_parameters = {}
     open_impacts = np.zeros(m)
     sources = []
+    exposures = []
     for phase, fluxes in zip(case.phases, phase_fluxes):
         phase_summary = {"name": phase.name, "duration_years": phase.duration, "by_source": {}}
         for source, group in fluxes.items():
@@ -270,6 +282,8 @@ def assess(case, progress=None):
                 impacts += areas * phase.duration * result.impact_flux * result.visible_exposure
                 penetrations += areas * phase.duration * result.penetration_flux
                 open_impacts += areas * phase.duration * result.impact_flux * result.open_exposure
+                exposures.append({"phase": phase.name, "source": source, "flux": flux,
+                                  "duration": phase.duration, "angle_exposure": result.angle_exposure})
                 by_direction = sum(
                     ((result.angle_exposure[t] * result.tables[t]).sum(axis=1) for t in critical_tags),
                     np.zeros(len(flux.directions)),
@@ -346,4 +360,5 @@ def assess(case, progress=None):
             for source, b in breakdowns.items()
         },
         timings=timings,
+        exposures=exposures,
     )

@@ -207,3 +207,42 @@ def test_requirements(folder):
     assert case.pnp_requirement == 0.99 and case.components[0].pnp_requirement == 0.995
     with pytest.raises(ConfigError, match=r"requirement\.pnp: must be a probability"):
         load_case(write(folder, make_case_text() + "\n[requirement]\npnp = 1.5\n"))
+
+
+@pytest.mark.parametrize(
+    ("body", "key", "words"),
+    [
+        ('tag = "wing"\nchanges = { wall_thickness = 0.2 }', "upgrades.0.tag", "no [shields.wing] table"),
+        ('tag = "panel"', "upgrades.0", "give either changes"),
+        ('tag = "panel"\nchanges = { wall_thickness = 0.2 }\nshield = { equation = "threshold_diameter", diameter = 0.1 }',
+         "upgrades.0", "not both"),
+        ('tag = "panel"\nchanges = {}', "upgrades.0.changes", "is empty"),
+        ('tag = "panel"\nchanges = { equation = "christiansen_1993" }', "upgrades.0.changes", "cannot change 'equation'"),
+        ('tag = "panel"\nchanges = { wall_thickness = 0.2 }\ncolour = "red"', "upgrades.0.colour", "unknown key"),
+    ],
+)
+def test_upgrade_mistakes(folder, body, key, words):
+    path = write(folder, make_case_text() + f"\n[[upgrades]]\n{body}\n")
+    with pytest.raises(ConfigError) as caught:
+        load_case(path)
+    assert f": {key}: " in str(caught.value) or f": {key} " in str(caught.value)
+    assert words in str(caught.value)
+
+
+def test_upgrades_apply_changes_and_add_up_across_variants(folder):
+    write(folder, make_case_text() + '\n[[upgrades]]\ntag = "panel"\nchanges = { wall_thickness = 0.2 }\n')
+    variant = folder / "variant.toml"
+    variant.write_text('extends = "case.toml"\n\n[[upgrades]]\nname = "hull B"\ntag = "hull"\n'
+                       'shield = { equation = "threshold_diameter", diameter = 0.5 }\n'
+                       '\n[[upgrades]]\nname = "hull B"\ntag = "hull"\nchanges = { standoff = 20.0 }\n',
+                       encoding="utf-8")
+    with pytest.raises(ConfigError, match="repeats the upgrade name 'hull B'"):
+        load_case(variant)
+    variant.write_text(variant.read_text(encoding="utf-8").replace('name = "hull B"\ntag = "hull"\nchanges',
+                                                                   'tag = "hull"\nchanges'), encoding="utf-8")
+    case = load_case(variant)
+    panel, hull_b, hull_c = case.upgrades
+    assert panel.definition == {**case.shields["panel"], "wall_thickness": 0.2}
+    assert panel.name == "panel: wall_thickness = 0.2"
+    assert hull_b.definition == {"equation": "threshold_diameter", "diameter": 0.5}
+    assert hull_c.definition["standoff"] == 20.0 and hull_c.definition["bumper_thickness"] == 0.1
