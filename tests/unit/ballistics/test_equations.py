@@ -11,6 +11,7 @@ import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from tests.equation_parameters import PARAMETERS
 
 from pockmark.ballistics import (
     EQUATIONS,
@@ -20,96 +21,6 @@ from pockmark.ballistics import (
 )
 from pockmark.constants import KSI_IN_MPA
 from pockmark.errors import InputError
-
-# One valid parameter set per registered equation (canonical units).
-PARAMETERS = {
-    "cour_palais_1987": {
-        "wall_thickness": 0.2,
-        "wall_density": 2.713,
-        "brinell_hardness": 95.0,
-        "sound_speed": 5.1,
-        "failure_coefficient": 1.8,
-    },
-    "christiansen_1993": {
-        "bumper_thickness": 0.127,
-        "bumper_density": 2.713,
-        "standoff": 10.0,
-        "rear_wall_thickness": 0.3175,
-        "rear_wall_yield_strength": 276.0,
-    },
-    "christiansen_1995": {
-        "front_areal_density": 1.34,
-        "standoff": 11.4,
-        "rear_wall_thickness": 0.48,
-        "rear_wall_density": 2.84,
-        "rear_wall_yield_strength": 393.0,
-    },
-    "christiansen_1995_multi_shock": {
-        "bumper_areal_density": 0.4,
-        "standoff": 15.0,
-        "rear_wall_thickness": 0.16,
-        "rear_wall_density": 2.84,
-        "rear_wall_yield_strength": 393.0,
-    },
-    "ryan_2008_aluminium": {
-        "front_sheet_thickness": 0.04,
-        "front_sheet_density": 2.7,
-        "core_thickness": 2.54,
-        "rear_sheet_thickness": 0.04,
-        "rear_sheet_yield_strength": 276.0,
-        "mli_areal_density": 0.05,
-    },
-    "ryan_2008_cfrp": {
-        "front_sheet_thickness": 0.162,
-        "front_sheet_density": 1.83,
-        "core_thickness": 4.5,
-        "rear_sheet_thickness": 0.162,
-        "rear_sheet_density": 1.83,
-        "mli_areal_density": 0.05,
-    },
-    "schafer_2008_aluminium": {
-        "outer_sheet_thickness": 0.041,
-        "core_thickness": 3.5,
-        "inner_sheet_thickness": 0.041,
-        "inner_sheet_density": 2.7,
-        "gap": 30.0,
-        "wall_thickness": 0.15,
-        "wall_yield_strength": 250.0,
-        "mli_areal_density": 0.0447,
-    },
-    "schafer_2008_cfrp": {
-        "outer_sheet_thickness": 0.1,
-        "outer_sheet_density": 1.6,
-        "core_thickness": 3.0,
-        "inner_sheet_thickness": 0.1,
-        "inner_sheet_density": 1.6,
-        "gap": 20.0,
-        "wall_thickness": 0.15,
-        "wall_yield_strength": 276.0,
-        "mli_areal_density": 0.05,
-    },
-    "christiansen_2009_mli": {"wall_thickness": 0.1, "blanket_areal_density": 0.188},
-    "sandwich_summed_face_sheets": {
-        "face_sheets_areal_density": 0.217,
-        "wall_density": 2.713,
-        "brinell_hardness": 95.0,
-        "sound_speed": 5.1,
-        "failure_coefficient": 1.8,
-    },
-    "sandwich_whipple_approximation": {
-        "front_sheet_thickness": 0.04,
-        "front_sheet_density": 2.713,
-        "core_thickness": 2.54,
-        "rear_sheet_thickness": 0.04,
-        "rear_sheet_yield_strength": 276.0,
-    },
-    "tabulated_diameter": {
-        "speeds": (1.0, 3.0, 7.0, 15.0),
-        "angles": (0.0, 45.0, 80.0),
-        "diameters": ((0.5, 0.7, 2.0), (0.3, 0.45, 1.2), (0.6, 0.7, 0.9), (0.45, 0.6, 0.8)),
-    },
-    "threshold_diameter": {"diameter": 0.1},
-}
 
 ALL = sorted(EQUATIONS)
 # Parameters that may be zero (an absent layer); every other scalar must be positive.

@@ -24,6 +24,7 @@ import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from tests.equation_parameters import PARAMETERS
 
 from pockmark.ballistics import (
     christiansen_1993,
@@ -49,53 +50,7 @@ FUNCTIONS = {
     "schafer_2008_cfrp": schafer_2008_cfrp,
     "christiansen_2009_mli": christiansen_2009_mli,
 }
-BASE = {
-    "christiansen_1995_multi_shock": {
-        "bumper_areal_density": 0.4,
-        "standoff": 15.0,
-        "rear_wall_thickness": 0.16,
-        "rear_wall_density": 2.84,
-        "rear_wall_yield_strength": 393.0,
-    },
-    "ryan_2008_aluminium": {
-        "front_sheet_thickness": 0.04,
-        "front_sheet_density": 2.7,
-        "core_thickness": 2.54,
-        "rear_sheet_thickness": 0.04,
-        "rear_sheet_yield_strength": 276.0,
-        "mli_areal_density": 0.05,
-    },
-    "ryan_2008_cfrp": {
-        "front_sheet_thickness": 0.162,
-        "front_sheet_density": 1.83,
-        "core_thickness": 4.5,
-        "rear_sheet_thickness": 0.162,
-        "rear_sheet_density": 1.83,
-        "mli_areal_density": 0.05,
-    },
-    "schafer_2008_aluminium": {
-        "outer_sheet_thickness": 0.041,
-        "core_thickness": 3.5,
-        "inner_sheet_thickness": 0.041,
-        "inner_sheet_density": 2.7,
-        "gap": 30.0,
-        "wall_thickness": 0.15,
-        "wall_yield_strength": 250.0,
-        "mli_areal_density": 0.0447,
-    },
-    "schafer_2008_cfrp": {
-        "outer_sheet_thickness": 0.1,
-        "outer_sheet_density": 1.6,
-        "core_thickness": 3.0,
-        "inner_sheet_thickness": 0.1,
-        "inner_sheet_density": 1.6,
-        "gap": 20.0,
-        "wall_thickness": 0.15,
-        "wall_yield_strength": 276.0,
-        "mli_areal_density": 0.05,
-    },
-    "christiansen_2009_mli": {"wall_thickness": 0.1, "blanket_areal_density": 0.188},
-}
+BASE = {name: PARAMETERS[name] for name in FUNCTIONS}
 ALL = sorted(FUNCTIONS)
 # Equations whose angle exponent δ (and ε) switches at 45° and 65° (docstrings).
 SWITCHING = {"ryan_2008_aluminium", "schafer_2008_aluminium"}
