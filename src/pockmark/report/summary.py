@@ -255,6 +255,8 @@ def format_summary(summary, out_dir=None):
             f"  Requirement PNP ≥ {requirement['pnp']:.5f}: {verdict} "
             f"(margin {requirement['margin']:+.5f}; allowed N ≤ {requirement['allowed_expected_penetrations']:.4g})"
         )
+        if not requirement["met"]:
+            add("  (`pockmark trade CASE --out DIR` ranks shield upgrades by risk removed per added kg)")
     for name, entry in summary["by_component"].items():
         if "requirement" in entry:
             verdict = "met" if entry["requirement"]["met"] else "NOT MET"
