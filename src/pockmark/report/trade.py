@@ -9,6 +9,7 @@ TRADE_FILES = ("upgrades.csv", "upgrades.json")
 _COLUMNS = (
     ("name", "name"),
     ("tag", "tag"),
+    ("component", "component"),
     ("origin", "origin"),
     ("equation", "equation"),
     ("tag_penetrations_before", "tag_penetrations_before"),
@@ -54,9 +55,12 @@ def format_trade(result, limit=15):
         verdict = "met" if base["pnp"] >= required else "NOT MET"
         head += f", requirement PNP >= {required:g}: {verdict}"
     lines += [head, ""]
-    lines.append(f"  {'critical tag':<22}{'share':>8}{'N':>12}{'mass kg':>11}  equation")
+    for component, need in result.get("component_requirements", {}).items():
+        lines.append(f"  Component {component}: requirement PNP >= {need:g}")
+    lines.append(f"  {'tag':<22}{'share':>8}{'N':>12}{'mass kg':>11}  equation")
     for tag in result["tags"]:
-        lines.append(f"  {tag['tag']:<22}{tag['share']:>8.1%}{tag['expected_penetrations']:>12.4g}"
+        share = "-" if tag["share"] is None else f"{tag['share']:.1%}"
+        lines.append(f"  {tag['tag']:<22}{share:>8}{tag['expected_penetrations']:>12.4g}"
                      f"{tag['shield_mass_kg']:>11.1f}  {tag['equation']}")
     lines += ["", f"  Candidates, best first ({len(result['candidates'])} evaluated; N removed per "
                   "added kg, free gains first):"]
@@ -78,14 +82,19 @@ def format_trade(result, limit=15):
         lines.append(f"  {number:>3}. {step['name']:<{width}} {mass:>9} kg  PNP {step['pnp']:.5f}")
     if not plan["steps"]:
         lines.append("       no candidate removes risk")
-    if required is not None:
+    for target in plan["targets"]:
+        if target["required"] is not None:
+            verdict = "met" if target["met"] else "NOT MET"
+            lines.append(f"  After the plan, {target['target']}: PNP {target['pnp']:.5f} "
+                         f"(required {target['required']:g}): {verdict}")
+    if plan["met"] is not None:
         if plan["met"]:
-            lines.append(f"  Requirement met after {len(plan['steps'])} step(s), "
+            lines.append(f"  Requirements met after {len(plan['steps'])} step(s), "
                          f"{plan['mass_added_kg']:+.1f} kg.")
         else:
-            lines.append(f"  The candidates cannot meet the requirement: best PNP "
-                         f"{plan['pnp']:.5f} at {plan['mass_added_kg']:+.1f} kg. Add stronger "
-                         f"[[upgrades]] to the case.")
+            lines.append(f"  The candidates cannot meet every requirement "
+                         f"({plan['mass_added_kg']:+.1f} kg tried). Add stronger [[upgrades]] "
+                         f"to the case.")
     for note in result["notes"]:
         lines.append(f"  Note: {note}")
     lines += ["", "  Caution: model estimates on the run's discretisation, not a certification; "

@@ -47,7 +47,7 @@ def candidates(case, shields, tags, steps=DEFAULT_STEPS):
     shields : dict
         Tag → the run's :class:`~pockmark.ballistics.Shield`.
     tags : iterable of str
-        Tags whose layer thicknesses are stepped (the critical tags of the vehicle).
+        Tags whose layer thicknesses are stepped (the tags that count toward a requirement).
     steps : sequence of float
         Factors > 1 on each thickness in :func:`~pockmark.ballistics.shields.layer_thicknesses`;
         empty for the case's upgrades only.
@@ -102,18 +102,16 @@ def tag_penetrations(assessment, tag, shield):
     return total
 
 
-def _tag_roles(assessment):
-    """Per tag: "critical", "shadow_only" or "mixed" (faces in components of both roles)."""
+def _tag_components(assessment):
+    """Tag name → its component (every face of a tag is in the same component)."""
     vehicle = assessment.vehicle
-    critical = np.array([c.role == "critical" for c in vehicle.components])[vehicle.face_components]
-    roles = {}
-    for t, name in enumerate(assessment.mesh.tag_names):
-        faces = assessment.mesh.face_tags == t
-        if not faces.any():
-            continue
-        share = critical[faces]
-        roles[name] = "critical" if share.all() else "shadow_only" if not share.any() else "mixed"
-    return roles
+    mesh = assessment.mesh
+    found = {}
+    for t, name in enumerate(mesh.tag_names):
+        faces = np.flatnonzero(mesh.face_tags == t)
+        if len(faces):
+            found[name] = vehicle.components[int(vehicle.face_components[faces[0]])]
+    return found
 
 
 def _pnp(n):
@@ -133,13 +131,15 @@ def trade_study(assessment, steps=DEFAULT_STEPS):
     Returns
     -------
     dict
-        ``requirement`` (the case's PNP requirement or None), ``baseline`` (critical expected
-        penetrations, PNP, shield mass), ``tags`` (per critical tag: area, mass, expected
-        penetrations and share), ``candidates`` (one dict each, best first: name, tag, origin,
-        equation, expected penetrations of the tag before and after, penetrations removed,
-        mass added [kg], removed per kg, PNP with that upgrade alone, whether that meets the
-        requirement), ``plan`` (steps in order with cumulative mass and PNP, and whether the
-        requirement is met at the end) and ``notes`` (tags that could not be traded).
+        ``requirement`` (the case's PNP requirement or None), ``component_requirements``
+        (component → required PNP), ``baseline`` (critical expected penetrations, PNP, shield
+        mass), ``tags`` (per traded tag: component, area, mass, expected penetrations and
+        share of the critical total), ``candidates`` (one dict each, best first: name, tag,
+        component, origin, equation, expected penetrations of the tag before and after,
+        penetrations removed, mass added [kg], removed per kg, vehicle PNP with that upgrade
+        alone, whether that alone meets every requirement), ``plan`` (steps in order with
+        cumulative mass and vehicle PNP, the PNP of every requirement's target at the end and
+        whether all are met) and ``notes`` (upgrades that could not be traded).
 
     Notes
     -----
@@ -147,7 +147,8 @@ def trade_study(assessment, steps=DEFAULT_STEPS):
     expected penetrations removed per added kilogram. The plan is greedy: it repeatedly
     takes the candidate with the most penetrations removed per added kilogram relative to
     what its tag has at that point (so a heavier option on an already upgraded tag counts
-    only its extra mass and gain), and stops when the requirement is met or no candidate
+    only its extra mass and gain), among the tags of requirements not yet met (the vehicle's
+    and each component's ``pnp_requirement``), and stops when all are met or no candidate
     removes more risk. Greedy plans are good, not always optimal. Masses are the build-ups'
     areal densities times the tag's area; supports, standoff volume and attachments are not
     counted.
@@ -155,33 +156,41 @@ def trade_study(assessment, steps=DEFAULT_STEPS):
     mesh = assessment.mesh
     shields = assessment.shields
     case = assessment.case
-    roles = _tag_roles(assessment)
-    critical_tags = [tag for tag, role in roles.items() if role == "critical"]
-    notes = [f"tag {tag!r} has faces in both critical and shadow-only components; not traded"
-             for tag, role in roles.items() if role == "mixed"]
+    component_of = _tag_components(assessment)
+    critical_tags = [tag for tag, c in component_of.items() if c.role == "critical"]
+    targets = [("vehicle", tuple(critical_tags), case.pnp_requirement)]
+    targets += [(f"component {c.name}", tuple(t for t in c.tags if t in component_of),
+                 c.pnp_requirement)
+                for c in assessment.vehicle.components if c.pnp_requirement is not None]
+    traded = sorted({tag for _, tags, _ in targets for tag in tags})
     areas = np.bincount(mesh.face_tags, weights=mesh.face_areas, minlength=len(mesh.tag_names))
     area_of = {name: float(areas[t]) for t, name in enumerate(mesh.tag_names)}
-    current = {tag: tag_penetrations(assessment, tag, shields[tag]) for tag in critical_tags}
-    baseline_n = sum(current.values())
-    mass_of = {tag: shields[tag].areal_density * area_of[tag] for tag in roles}
+    current = {tag: tag_penetrations(assessment, tag, shields[tag]) for tag in traded}
+    baseline_n = sum(current[tag] for tag in critical_tags)
+    mass_of = {tag: shields[tag].areal_density * area_of[tag] for tag in component_of}
     required = case.pnp_requirement
+    notes = []
 
     evaluated = []
-    for candidate in candidates(case, shields, critical_tags, steps):
-        role = roles.get(candidate.tag)
-        if role != "critical":
-            why = ("no face of the mesh uses it" if role is None
-                   else f"its faces are {role.replace('_', '-')}")
+    for candidate in candidates(case, shields, traded, steps):
+        if candidate.tag not in current:
+            why = ("no face of the mesh uses it" if candidate.tag not in component_of
+                   else "its component is shadow-only and has no requirement")
             notes.append(f"upgrade {candidate.name!r}: tag {candidate.tag!r} does not count "
-                         f"toward PNP ({why})")
+                         f"toward any requirement ({why})")
             continue
         after = tag_penetrations(assessment, candidate.tag, candidate.shield)
         removed = current[candidate.tag] - after
         added = candidate.shield.areal_density * area_of[candidate.tag] - mass_of[candidate.tag]
-        pnp = _pnp(baseline_n - removed)
+        critical = candidate.tag in critical_tags
+        pnp = _pnp(baseline_n - (removed if critical else 0.0))
+        met = [_pnp(sum(current[t] for t in tags)
+                    - (removed if candidate.tag in tags else 0.0)) >= need
+               for _, tags, need in targets if need is not None]
         evaluated.append({
             "name": candidate.name,
             "tag": candidate.tag,
+            "component": component_of[candidate.tag].name,
             "origin": candidate.origin,
             "equation": candidate.shield.equation,
             "tag_penetrations_before": current[candidate.tag],
@@ -190,28 +199,27 @@ def trade_study(assessment, steps=DEFAULT_STEPS):
             "mass_added_kg": added,
             "removed_per_kg": removed / added if added > 0 else None,
             "pnp_alone": pnp,
-            "meets_requirement_alone": None if required is None else pnp >= required,
-            "_shield": candidate.shield,
+            "meets_requirement_alone": all(met) if met else None,
         })
     evaluated.sort(key=_rank)
-
-    plan = _greedy_plan(evaluated, current, baseline_n, required)
-    for entry in evaluated:
-        del entry["_shield"]
-    total_n = baseline_n
+    plan = _greedy_plan(evaluated, current, targets)
     return {
         "requirement": required,
+        "component_requirements": {name.removeprefix("component "): need
+                                   for name, _, need in targets[1:]},
         "baseline": {
-            "expected_penetrations": total_n,
-            "pnp": _pnp(total_n),
+            "expected_penetrations": baseline_n,
+            "pnp": _pnp(baseline_n),
             "shield_mass_kg": float(sum(mass_of.values())),
             "critical_shield_mass_kg": float(sum(mass_of[t] for t in critical_tags)),
         },
         "tags": [
-            {"tag": tag, "area_m2": area_of[tag], "shield_mass_kg": mass_of[tag],
-             "equation": shields[tag].equation, "expected_penetrations": current[tag],
-             "share": current[tag] / total_n if total_n > 0 else 0.0}
-            for tag in sorted(critical_tags, key=lambda t: -current[t])
+            {"tag": tag, "component": component_of[tag].name, "area_m2": area_of[tag],
+             "shield_mass_kg": mass_of[tag], "equation": shields[tag].equation,
+             "expected_penetrations": current[tag],
+             "share": current[tag] / baseline_n if baseline_n > 0 and tag in critical_tags
+             else None}
+            for tag in sorted(traded, key=lambda t: -current[t])
         ],
         "candidates": evaluated,
         "plan": plan,
@@ -230,22 +238,36 @@ def _rank(entry):
     return (2, -removed)
 
 
-def _greedy_plan(evaluated, current, baseline_n, required):
+def _greedy_plan(evaluated, current, targets):
+    """Add candidates by gain per added kg until every requirement is met (see trade_study).
+
+    Without any requirement the plan goes on while some candidate removes risk from the
+    vehicle's critical tags."""
     chosen = {}  # tag -> candidate entry in force
     tag_n = dict(current)
     mass = 0.0
-    n = baseline_n
     steps = []
-    while required is None or _pnp(n) < required:
+
+    def unmet():
+        return [(name, tags) for name, tags, need in targets
+                if need is not None and _pnp(sum(tag_n[t] for t in tags)) < need]
+
+    open_ended = all(need is None for _, _, need in targets)
+    scale = max(sum(current.values()), 1e-300)
+    while True:
+        wanted = [("vehicle", targets[0][1])] if open_ended else unmet()
+        if not wanted:
+            break
+        useful = {tag for _, tags in wanted for tag in tags}
         best = best_key = None
         for entry in evaluated:
             tag = entry["tag"]
-            if chosen.get(tag) is entry:
+            if tag not in useful or chosen.get(tag) is entry:
                 continue
             gain = tag_n[tag] - entry["tag_penetrations_after"]
             in_force = chosen.get(tag)
             extra = entry["mass_added_kg"] - (in_force["mass_added_kg"] if in_force else 0.0)
-            if gain <= 1e-12 * max(baseline_n, 1e-300):
+            if gain <= 1e-12 * scale:
                 continue
             key = (0, -gain) if extra <= 0 else (1, -gain / extra)
             if best_key is None or key < best_key:
@@ -254,10 +276,15 @@ def _greedy_plan(evaluated, current, baseline_n, required):
             break
         chosen[best["tag"]] = best
         tag_n[best["tag"]] = best["tag_penetrations_after"]
-        n -= best_gain
         mass += best_extra
+        vehicle_n = sum(tag_n[t] for t in targets[0][1])
         steps.append({"name": best["name"], "tag": best["tag"], "penetrations_removed": best_gain,
                       "mass_added_kg": best_extra, "cumulative_mass_added_kg": mass,
-                      "expected_penetrations": n, "pnp": _pnp(n)})
-    return {"steps": steps, "met": None if required is None else _pnp(n) >= required,
-            "pnp": _pnp(n), "mass_added_kg": mass}
+                      "expected_penetrations": vehicle_n, "pnp": _pnp(vehicle_n)})
+    outcome = [{"target": name, "required": need, "pnp": _pnp(sum(tag_n[t] for t in tags)),
+                "met": None if need is None else _pnp(sum(tag_n[t] for t in tags)) >= need}
+               for name, tags, need in targets]
+    vehicle_n = sum(tag_n[t] for t in targets[0][1])
+    return {"steps": steps, "targets": outcome,
+            "met": None if open_ended else not unmet(),
+            "pnp": _pnp(vehicle_n), "mass_added_kg": mass}

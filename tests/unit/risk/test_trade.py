@@ -138,7 +138,7 @@ def test_shadow_only_tags_are_not_traded(shadowed_box_case):
         warnings.simplefilter("ignore", ModelRangeWarning)
         result = trade_study(assess(load_case(shadowed_box_case)), steps=(1.5,))
     assert all(entry["tag"] == "hull" for entry in result["candidates"])
-    assert any("'panel' does not count toward PNP" in note for note in result["notes"])
+    assert any("'panel' does not count toward any requirement" in note for note in result["notes"])
 
 
 def test_invalid_upgrade_shield_names_file_and_line(shadowed_box_case):
@@ -150,3 +150,26 @@ def test_invalid_upgrade_shield_names_file_and_line(shadowed_box_case):
         run = assess(case)
     with pytest.raises(ConfigError, match=r"case\.toml:\d+: shield 'hull': unknown key 'standof'"):
         trade_study(run)
+
+
+def test_plan_meets_a_component_requirement(shadowed_box_case):
+    """With only a component requirement, the plan upgrades only that component's tags
+    and stops when its PNP reaches the requirement."""
+    with shadowed_box_case.open("a", encoding="utf-8") as handle:
+        handle.write(UPGRADES)
+    case = load_case(shadowed_box_case)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ModelRangeWarning)
+        run = assess(case)
+        hull_n = tag_penetrations(run, "hull", run.shields["hull"])
+        need = math.exp(-0.5 * hull_n)  # half the hull's risk must go
+        with shadowed_box_case.open("a", encoding="utf-8") as handle:
+            handle.write(f'\n[components.shell]\ntags = ["hull"]\npnp_requirement = {need!r}\n')
+        run = assess(load_case(shadowed_box_case))
+        result = trade_study(run, steps=(1.5, 2.0, 4.0, 8.0))
+    assert result["component_requirements"] == {"shell": need}
+    plan = result["plan"]
+    assert plan["met"] is True and plan["steps"]
+    assert {step["tag"] for step in plan["steps"]} == {"hull"}
+    (shell,) = [t for t in plan["targets"] if t["target"] == "component shell"]
+    assert shell["met"] and shell["pnp"] >= need
