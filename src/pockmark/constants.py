@@ -18,6 +18,10 @@ ATMOSPHERE_ALLOWANCE = 100.0
 #: One ksi in MPa (exact from 1 lbf = 4.4482216152605 N and 1 in = 25.4 mm).
 KSI_IN_MPA = 6.894757293168361
 
+#: Names of the size-dependent particle density laws, by source
+#: (:mod:`pockmark.environment.density` defines them; the case reader checks names here).
+DENSITY_LAW_NAMES = {"debris": ("kessler_1991",), "meteoroid": ("ssp_30425",)}
+
 
 @dataclass(frozen=True)
 class Tolerances:

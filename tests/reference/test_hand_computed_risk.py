@@ -34,6 +34,10 @@ class _Flux:
     def cumulative_flux(self, diameter):
         return self.constant * np.asarray(diameter, dtype=float) ** -2.5
 
+    def penetrating_flux(self, critical_diameter, weight=None):
+        counted = self.cumulative_flux(critical_diameter(self.projectile_density))
+        return counted if weight is None else counted * weight(self.projectile_density)
+
 
 def _mesh(part, tag="wall"):
     return Mesh(

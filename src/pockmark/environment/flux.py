@@ -34,14 +34,15 @@ from pockmark._validation import require_positive
 from pockmark.constants import tol
 from pockmark.environment import kessler_1991 as _kessler
 from pockmark.environment.debris_directions import _population, debris_direction_distribution
+from pockmark.environment.density import KESSLER_1991_SMALL_DENSITY, density_classes
 from pockmark.environment.directions import fibonacci_directions_above
 from pockmark.environment.grun_1985 import grun_1985
-from pockmark.environment.motion import to_moving_frame
 from pockmark.environment.meteoroid_speed import (
     RAW_NORMALISATION_NASA,
     speed_bins_ecss_2008,
     speed_bins_nasa,
 )
+from pockmark.environment.motion import to_moving_frame
 from pockmark.environment.orbit import (
     circular_speed,
     earth_shielding_factor,
@@ -69,12 +70,13 @@ def _positive_diameter(diameter):
     return d
 
 
-def _debris_omnidirectional(flux, diameter):
+def _debris_omnidirectional(flux, diameter, density=None):
     """Φ0 = 4 F_kessler_1991(d) [m⁻² yr⁻¹] for the stored orbit and epoch(s).
 
     With ``parameters["epochs"]`` (a list of ``{"year", "solar_flux", "fraction"}``), the
     time-weighted mean over the epochs: the direction-speed weights of the model depend on the
     orbit only, so one flux with the averaged size distribution is exact for the total.
+    The model counts diameters, so ``density`` plays no part.
     """
     d, issues = _kessler._check_diameter(diameter)
     _kessler._warn("kessler_1991", issues, stacklevel=4)
@@ -91,11 +93,12 @@ def _debris_omnidirectional(flux, diameter):
     return 4.0 * total
 
 
-def _meteoroid_omnidirectional(flux, diameter):
+def _meteoroid_omnidirectional(flux, diameter, density=None):
     """Φ0 = 4 G K F_grun_1985(π/6 ρ d³) [m⁻² yr⁻¹] for the stored focusing factor, motion
-    gain K (1 at rest) and density."""
+    gain K (1 at rest) and density (``density`` when given)."""
     d = _positive_diameter(diameter)
-    mass = np.pi / 6.0 * flux.projectile_density * d**3
+    rho = flux.projectile_density if density is None else density
+    mass = np.pi / 6.0 * rho * d**3
     gain = flux.parameters.get("motion_factor", 1.0)
     return 4.0 * flux.parameters["focusing_factor"] * gain * np.asarray(grun_1985(mass))
 
@@ -192,7 +195,7 @@ def tabulated_cumulative_flux(diameters, fluxes, diameter, label="user_table"):
     return out.reshape(d.shape)
 
 
-def _table_omnidirectional(flux, diameter):
+def _table_omnidirectional(flux, diameter, density=None):
     """Φ0(≥ d) [m⁻² yr⁻¹] interpolated in the size distribution stored in the parameters."""
     table = flux.parameters["size_distribution"]
     return tabulated_cumulative_flux(
@@ -229,7 +232,9 @@ class DirectionalFlux:
         [unitless]; non-negative, summing to at most 1. Directions blocked by the Earth are
         omitted.
     projectile_density : float
-        Density of the particles [g cm⁻³].
+        Density of the particles [g cm⁻³]; with ``parameters["density_classes"]`` (a size
+        law, :mod:`pockmark.environment.density`) the nominal density reported, while the
+        classes decide every flux.
     parameters : dict
         Every input and convention used to build the flux, JSON-serialisable, for the run
         manifest. :meth:`cumulative_flux` reads the model inputs from it.
@@ -317,8 +322,50 @@ class DirectionalFlux:
         InputError
             If a diameter is zero or negative.
         """
-        flux = _OMNIDIRECTIONAL[self.model](self, diameter)
-        return flux if np.ndim(flux) else float(flux)
+        return self.penetrating_flux(lambda density: diameter)
+
+    def density_classes(self):
+        """``[(density [g cm⁻³], smallest, largest [cm]), ...]``: the particles' density by
+        size; one class of :attr:`projectile_density` for all sizes unless a law is stored."""
+        stored = self.parameters.get("density_classes")
+        if stored is None:
+            return [(self.projectile_density, 0.0, np.inf)]
+        return [(float(rho), float(a), float(b)) for rho, a, b in stored]
+
+    def penetrating_flux(self, critical_diameter, weight=None):
+        """Omnidirectional flux of the particles at least as large as a density-dependent size.
+
+        Parameters
+        ----------
+        critical_diameter : callable
+            ``critical_diameter(density)`` → diameters [cm] (any shape; the same shape for
+            every density): the smallest particle of that density that counts, e.g. the
+            critical diameter of a shield. ``numpy.inf`` counts nothing.
+        weight : callable, optional
+            ``weight(density)`` → factors broadcastable to that shape (e.g. a mask of
+            impacts outside an equation's range), applied to each class's flux.
+
+        Returns
+        -------
+        numeric
+            :math:`\\sum_c [\\Phi_{\\rho_c}(\\ge \\max(d_c(\\rho_c), a_c))
+            - \\Phi_{\\rho_c}(\\ge b_c)]^+` over the density classes
+            ``(ρ_c, a_c, b_c)`` [m⁻² yr⁻¹]: within a class of constant density a particle
+            counts when it reaches that density's size, so no iteration is needed. With one
+            class (no law) this is :math:`\\Phi_0(\\ge d_c(\\rho))`.
+        """
+        evaluate = _OMNIDIRECTIONAL[self.model]
+        total = 0.0
+        for density, smallest, largest in self.density_classes():
+            threshold = np.maximum(np.asarray(critical_diameter(density), dtype=np.float64),
+                                   smallest)
+            counted = evaluate(self, threshold, density)
+            if np.isfinite(largest):
+                counted = np.maximum(counted - evaluate(self, largest, density), 0.0)
+            if weight is not None:
+                counted = counted * weight(density)
+            total = total + counted
+        return total if np.ndim(total) else float(total)
 
     def mean_speed(self):
         """Flux-weighted mean impact speed [km s⁻¹]."""
@@ -345,12 +392,22 @@ def _scalar(name, value, unit):
     return float(value)
 
 
-def _density(value):
-    return float(
-        require_positive(
-            "projectile_density", _scalar("projectile_density", value, "g cm⁻³"), "g cm⁻³"
-        )
-    )
+#: Density reported for a flux that carries a size law (the classes decide every number).
+_NOMINAL_DENSITY = {"kessler_1991": KESSLER_1991_SMALL_DENSITY, "ssp_30425": 1.0}
+
+
+def _density(value, source):
+    """``(nominal density, extra parameters)`` for a density in g cm⁻³ or a law's name."""
+    if isinstance(value, str):
+        classes = density_classes(value, source)
+        return _NOMINAL_DENSITY[value], {
+            "density_law": value,
+            "density_classes": [list(c) for c in classes],
+            "density_classes_columns": ["density_g_cm3", "smallest_cm", "largest_cm"],
+        }
+    density = float(require_positive(
+        "projectile_density", _scalar("projectile_density", value, "g cm⁻³"), "g cm⁻³"))
+    return density, {"density_law": None}
 
 
 def debris_flux(
@@ -375,8 +432,10 @@ def debris_flux(
     solar_flux : float
         13-month smoothed F10.7 solar radio flux of the year **before** ``year``
         [10⁴ Jy].
-    projectile_density : float
-        Debris density [g cm⁻³], > 0. Default 2.8 (aluminium); one value for all sizes.
+    projectile_density : float or str
+        Debris density [g cm⁻³], > 0, one value for all sizes (default 2.8, aluminium), or
+        ``"kessler_1991"`` for the model's own size law
+        (:mod:`pockmark.environment.density`).
     azimuth_bins : int
         Number of equal azimuth bins over [−90°, 90°]; even.
     population : sequence of tuple, optional
@@ -423,7 +482,7 @@ def debris_flux(
     i = _scalar("inclination", inclination, "°")
     t = _scalar("year", year, "yr")
     s = _scalar("solar_flux", solar_flux, "10⁴ Jy")
-    density = _density(projectile_density)
+    density, density_parameters = _density(projectile_density, "debris")
     _, _, orbit_issues = _kessler._check_orbit(h, i)
     _, _, epoch_issues = _kessler._check_epoch(t, s)
     _kessler._warn("kessler_1991", orbit_issues + epoch_issues)
@@ -447,6 +506,7 @@ def debris_flux(
         "earth_shielding": False,
         "focusing": "none",
         "frame": "local orbital: x flight direction, z zenith, y = z x x; directions toward source",
+        **density_parameters,
     }
     return DirectionalFlux(
         source="debris",
@@ -474,8 +534,10 @@ def meteoroid_flux(
     ----------
     altitude : float
         Orbit altitude [km]; must exceed the 100 km atmosphere allowance.
-    projectile_density : float
-        Meteoroid density [g cm⁻³], > 0, used to turn diameters into masses. Default 1.0.
+    projectile_density : float or str
+        Meteoroid density [g cm⁻³], > 0, used to turn diameters into masses (default 1.0),
+        or ``"ssp_30425"`` for the three-step law by mass
+        (:mod:`pockmark.environment.density`).
     directions : int
         Number of directions of the Fibonacci grid over the full sphere, before the Earth's
         disc is removed. Default 600.
@@ -551,7 +613,7 @@ def meteoroid_flux(
     """
     h = _scalar("altitude", altitude, "km")
     eta = earth_shielding_half_angle(h)  # validates h > 100 km
-    density = _density(projectile_density)
+    density, density_parameters = _density(projectile_density, "meteoroid")
     if focusing not in FOCUSING_CONVENTIONS:
         raise InputError(
             f"unknown meteoroid focusing convention {focusing!r}; choose one of: "
@@ -598,6 +660,7 @@ def meteoroid_flux(
             else "isotropic at rest with the Earth (vehicle motion not applied)"
         ),
         "frame": "local orbital: x flight direction, z zenith, y = z x x; directions toward source",
+        **density_parameters,
     }
     return DirectionalFlux(
         source="meteoroid",

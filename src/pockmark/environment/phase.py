@@ -162,8 +162,9 @@ class DebrisSpec:
         calendar year (int keys; strings of digits are accepted). The flux at a date in year
         *Y* uses the value of year *Y − 1*, as the model requires, so a phase from 2030 to 2032
         needs the years 2029–2031. Default ``DEFAULT_SOLAR_FLUX`` (see there: not a forecast).
-    projectile_density : float
-        Debris density [g cm⁻³], > 0. Default 2.8 (aluminium).
+    projectile_density : float or str
+        Debris density [g cm⁻³], > 0 (default 2.8, aluminium), or ``"kessler_1991"`` for the
+        model's size law (:mod:`~pockmark.environment.density`).
     population : tuple or None
         Debris inclination families for the direction and speed distribution (see
         :func:`~pockmark.environment.debris_directions.debris_direction_distribution`);
@@ -171,7 +172,7 @@ class DebrisSpec:
     """
 
     solar_flux: float | dict = DEFAULT_SOLAR_FLUX
-    projectile_density: float = 2.8
+    projectile_density: float | str = 2.8
     population: tuple | None = None
 
 
@@ -181,8 +182,9 @@ class MeteoroidSpec:
 
     Attributes
     ----------
-    projectile_density : float
-        Meteoroid density [g cm⁻³], > 0. Default 1.0.
+    projectile_density : float or str
+        Meteoroid density [g cm⁻³], > 0 (default 1.0), or ``"ssp_30425"`` for the three-step
+        law by mass (:mod:`~pockmark.environment.density`).
     focusing : {"nasa_1994", "ecss_2008"}
         Gravitational focusing convention (see
         :func:`~pockmark.environment.flux.meteoroid_flux`). Default ``"nasa_1994"``.
@@ -192,7 +194,7 @@ class MeteoroidSpec:
         Default ``True``; ``False`` keeps the flux as it is at rest with the Earth.
     """
 
-    projectile_density: float = 1.0
+    projectile_density: float | str = 1.0
     focusing: str = "nasa_1994"
     vehicle_motion: bool = True
 

@@ -15,6 +15,7 @@ import tomllib
 from dataclasses import dataclass
 from pathlib import Path
 
+from pockmark.constants import DENSITY_LAW_NAMES
 from pockmark.errors import ConfigError
 from pockmark.geometry.frames import ATTITUDE_AXES
 from pockmark.geometry.units import LENGTH_UNITS
@@ -50,14 +51,14 @@ class Phase:
 class DebrisSettings:
     model: str
     solar_flux: float | dict | None  # F10.7 [sfu], one value or {year: value}; None = model default
-    projectile_density: float  # [g cm⁻³]
+    projectile_density: float | str  # [g cm⁻³], or the name of a size law
     population: tuple | None = None  # ((inclination [°], weight, half-width [°]), ...)
 
 
 @dataclass(frozen=True)
 class MeteoroidSettings:
     model: str
-    projectile_density: float  # [g cm⁻³]
+    projectile_density: float | str  # [g cm⁻³], or the name of a size law
     focusing: str = "nasa_1994"
     vehicle_motion: bool = True  # seen from the moving vehicle (ram/wake asymmetry)
 
@@ -305,6 +306,18 @@ class _Reader:
         unknown = sorted(set(self.table) - set(allowed))
         if unknown:
             self.fail(unknown[0], f"unknown key; valid keys here: {', '.join(sorted(allowed))}")
+
+
+def _projectile_density(reader, source, default):
+    """A density [g cm⁻³] > 0, or the name of a size law of the source's model."""
+    laws = DENSITY_LAW_NAMES[source]
+
+    def check(value):
+        if isinstance(value, str):
+            return None if value in laws else f"must be a density in g cm⁻³ or one of: {', '.join(laws)}"
+        return _positive(value)
+
+    return reader.get("projectile_density", (float, str), default=default, check=check)
 
 
 def _probability(value):
@@ -700,7 +713,7 @@ def load_case(path):
         debris = DebrisSettings(
             model=reader.get("model", str, default="kessler_1991", check=_choice(("kessler_1991",))),
             solar_flux=float(solar_flux) if isinstance(solar_flux, int) else solar_flux,
-            projectile_density=reader.get("projectile_density", float, default=2.8, check=_positive),
+            projectile_density=_projectile_density(reader, "debris", 2.8),
             population=population,
         )
         reader.finish()
@@ -709,7 +722,7 @@ def load_case(path):
         reader = _Reader(path, sources, meteoroid_table, ("environment", "meteoroid"))
         meteoroid = MeteoroidSettings(
             model=reader.get("model", str, default="grun_1985", check=_choice(("grun_1985",))),
-            projectile_density=reader.get("projectile_density", float, default=1.0, check=_positive),
+            projectile_density=_projectile_density(reader, "meteoroid", 1.0),
             vehicle_motion=reader.get("vehicle_motion", bool, default=True),
         )
         reader.finish()

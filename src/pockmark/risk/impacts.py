@@ -36,38 +36,46 @@ def penetration_table(shield, flux):
     ----------
     shield : pockmark.ballistics.shields.Shield
     flux : DirectionalFlux-like
-        ``speeds`` (nv,), ``weights`` (nd, nv), ``projectile_density`` and ``cumulative_flux``.
+        ``speeds`` (nv,), ``weights`` (nd, nv) and ``penetrating_flux``.
 
     Returns
     -------
     (nd, na) float
         :math:`\\sum_k w_{jk}\\Phi_0(\\ge d_c(V_k, \\theta_a))` at the angles
-        :data:`ANGLE_NODES` [m⁻² yr⁻¹].
+        :data:`ANGLE_NODES` [m⁻² yr⁻¹], each particle at its own density when the flux
+        carries a density law.
     """
-    speeds = np.asarray(flux.speeds, dtype=np.float64)[None, :]
-    angles = ANGLE_NODES[:, None]
-    critical = np.asarray(shield.critical_diameter(speeds, angles, flux.projectile_density), dtype=np.float64)
-    critical = np.broadcast_to(critical, (len(ANGLE_NODES), speeds.shape[1]))
+    return _tabulate(shield, flux)
+
+
+def out_of_range_table(shield, flux):
+    """The part of :func:`penetration_table` from impacts outside the equation's stated range."""
+    speeds, angles = _table_grid(flux)
+    return _tabulate(shield, flux, lambda density: shield.out_of_range(speeds, angles, density))
+
+
+def _table_grid(flux):
+    """(speeds (1, nv), angles (na, 1)) of the penetration tables."""
+    return np.asarray(flux.speeds, dtype=np.float64)[None, :], ANGLE_NODES[:, None]
+
+
+def _tabulate(shield, flux, weight=None, smallest=None):
+    """Σ_k w_jk × (penetrating flux at speed k and angle a), for particles of at least
+    ``smallest`` [cm] too when given, with an optional per-density weight."""
+    speeds, angles = _table_grid(flux)
+    shape = (len(ANGLE_NODES), speeds.shape[1])
+
+    def critical(density):
+        values = np.broadcast_to(shield.critical_diameter(speeds, angles, density), shape)
+        return values if smallest is None else np.maximum(values, smallest)
+
     # The table spans every speed bin at every angle up to grazing, so it always reaches
     # critical diameters far beyond a flux model's size range (slow or grazing impacts) where
     # the flux is negligible; the models' range warnings would only be noise here.
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ModelRangeWarning)
-        penetrating = np.asarray(flux.cumulative_flux(critical), dtype=np.float64)
-    return np.asarray(flux.weights, dtype=np.float64) @ penetrating.T
-
-
-def out_of_range_table(shield, flux):
-    """The part of :func:`penetration_table` from impacts outside the equation's stated range."""
-    speeds = np.asarray(flux.speeds, dtype=np.float64)[None, :]
-    angles = ANGLE_NODES[:, None]
-    critical = np.asarray(shield.critical_diameter(speeds, angles, flux.projectile_density), dtype=np.float64)
-    critical = np.broadcast_to(critical, (len(ANGLE_NODES), speeds.shape[1]))
-    outside = np.broadcast_to(shield.out_of_range(speeds, angles, flux.projectile_density), critical.shape)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", ModelRangeWarning)
-        penetrating = np.asarray(flux.cumulative_flux(critical), dtype=np.float64)
-    return np.asarray(flux.weights, dtype=np.float64) @ (penetrating * outside).T
+        penetrating = np.broadcast_to(flux.penetrating_flux(critical, weight), shape)
+    return np.asarray(flux.weights, dtype=np.float64) @ np.asarray(penetrating, dtype=np.float64).T
 
 
 def angle_positions(cosines):
@@ -122,11 +130,5 @@ def penetration_table_by_size(shield, flux, edges=SIZE_EDGES):
     :math:`\\Phi_0(\\ge\\max(d_c, e_b)) - \\Phi_0(\\ge\\max(d_c, e_{b+1}))`. The bins add
     up to :func:`penetration_table`.
     """
-    speeds = np.asarray(flux.speeds, dtype=np.float64)[None, :]
-    critical = np.asarray(shield.critical_diameter(speeds, ANGLE_NODES[:, None], flux.projectile_density), dtype=np.float64)
-    critical = np.broadcast_to(critical, (len(ANGLE_NODES), speeds.shape[1]))
-    weights = np.asarray(flux.weights, dtype=np.float64)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", ModelRangeWarning)
-        cumulative = [np.asarray(flux.cumulative_flux(np.maximum(critical, edge)), dtype=np.float64) for edge in edges]
-    return np.stack([weights @ (low - high).T for low, high in zip(cumulative[:-1], cumulative[1:])])
+    cumulative = [_tabulate(shield, flux, smallest=edge) for edge in edges]
+    return np.stack([low - high for low, high in zip(cumulative[:-1], cumulative[1:])])

@@ -246,3 +246,15 @@ def test_upgrades_apply_changes_and_add_up_across_variants(folder):
     assert panel.name == "panel: wall_thickness = 0.2"
     assert hull_b.definition == {"equation": "threshold_diameter", "diameter": 0.5}
     assert hull_c.definition["standoff"] == 20.0 and hull_c.definition["bumper_thickness"] == 0.1
+
+
+def test_density_laws_by_name(folder):
+    text = make_case_text(**{"solar_flux = 100.0": 'solar_flux = 100.0\nprojectile_density = "kessler_1991"',
+                             "projectile_density = 1.0": 'projectile_density = "ssp_30425"'})
+    case = load_case(write(folder, text))
+    assert case.debris.projectile_density == "kessler_1991"
+    assert case.meteoroid.projectile_density == "ssp_30425"
+    text = make_case_text(**{"projectile_density = 1.0": 'projectile_density = "kessler_1991"'})
+    with pytest.raises(ConfigError, match=r"environment.meteoroid.projectile_density: must be a "
+                                          r"density in g cm⁻³ or one of: ssp_30425"):
+        load_case(write(folder, text))

@@ -25,6 +25,10 @@ class _PowerLawFlux:
     def cumulative_flux(self, diameter):
         return 1e-5 * np.asarray(diameter, dtype=float) ** -2.5
 
+    def penetrating_flux(self, critical_diameter, weight=None):
+        counted = self.cumulative_flux(critical_diameter(self.projectile_density))
+        return counted if weight is None else counted * weight(self.projectile_density)
+
 
 class _LinearShield:
     def critical_diameter(self, impact_velocity, impact_angle, projectile_density):
