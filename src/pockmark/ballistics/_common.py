@@ -84,8 +84,9 @@ class ValidityRange(NamedTuple):
     unit: str
     note: str
 
-    def describe(self):
-        """One phrase: ``"impact_velocity in [0, 8] km s⁻¹ (note)"``."""
+    def describe(self, with_note=True):
+        """One phrase: ``"impact_velocity in [0, 8] km s⁻¹ (note)"``; without the note when
+        ``with_note`` is false."""
         if self.minimum == -np.inf or (self.minimum <= 0 and self.parameter != "impact_angle"):
             bounds = f"≤ {self.maximum:g}"
         elif self.maximum == np.inf:
@@ -93,7 +94,8 @@ class ValidityRange(NamedTuple):
         else:
             bounds = f"in [{self.minimum:g}, {self.maximum:g}]"
         unit = "°" if self.unit == "°" else f" {self.unit}"
-        return f"{self.parameter} {bounds}{unit} ({self.note})"
+        text = f"{self.parameter} {bounds}{unit}"
+        return f"{text} ({self.note})" if with_note else text
 
 
 def _outside(ranges, impact_velocity, impact_angle, projectile_density):

@@ -144,6 +144,13 @@ class Shield:
             return "no stated range"
         return "; ".join(limits.describe() for limits in self.ranges)
 
+    @property
+    def validity_bounds(self):
+        """The validity range's bounds only: ``"impact_velocity ≤ 8 km s⁻¹; ..."``."""
+        if not self.ranges:
+            return "no stated range"
+        return "; ".join(limits.describe(with_note=False) for limits in self.ranges)
+
     def _function(self):
         try:
             return _SPECS[self.equation].function

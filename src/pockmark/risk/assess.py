@@ -336,7 +336,8 @@ def assess(case, progress=None):
             share = outside_validity[t] / tag_penetrations[t]
             warnings.warn(
                 f"shield {name!r}: {share:.0%} of its expected penetrations come from impacts outside "
-                f"the range of {shields[name].equation} ({shields[name].validity}); those are extrapolated",
+                f"the stated range of {shields[name].equation} ({shields[name].validity_bounds}) and "
+                f"are extrapolated; the range's source is in summary.json",
                 ModelRangeWarning,
                 stacklevel=2,
             )
