@@ -695,6 +695,43 @@ _TRIPLE_WALL_NOTICE = (
     "t_w^(1/2) (taken for a typo); treat results below the high-speed limit with extra doubt"
 )
 
+
+
+def _panel_spec(function, material):
+    """The honeycomb-panel equation for one face-sheet material."""
+    return _EquationSpec(
+        function=function,
+        layer_thicknesses=("front_sheet_thickness", "rear_sheet_thickness"),
+        reference=_RYAN_2008,
+        status=_SECOND_HAND,
+        validity=_PANEL_SPEED.describe(),
+        quantities=(_sheet_quantities(yield_from_rear=material == "aluminium")
+                    + (_PUBLISHED_MLI_QUANTITY,)),
+        material_keys=("front_sheet_material", "rear_sheet_material"),
+        build=_build_ryan(material),
+        ranges=lambda parameters: (_PANEL_SPEED,),
+        regimes=_panel_regimes(material),
+    )
+
+
+def _triple_wall_spec(function, material):
+    """The triple-wall equation behind a panel of one face-sheet material."""
+    return _EquationSpec(
+        function=function,
+        layer_thicknesses=("wall_thickness",),
+        reference=_SCHAFER_2008,
+        status=_SECOND_HAND,
+        validity=f"{_TRIPLE_ANGLE.describe()}; {_PANEL_SPEED.describe()}",
+        quantities=_triple_wall_quantities(outer_density_in_equation=material == "cfrp"),
+        material_keys=("outer_sheet_material", "inner_sheet_material", "wall_material"),
+        build=_build_triple_wall(material),
+        ranges=lambda parameters: (_TRIPLE_ANGLE, _PANEL_SPEED),
+        regimes=_panel_regimes(material),
+        default_angle_cap=65.0,
+        notice=_TRIPLE_WALL_NOTICE,
+    )
+
+
 _SPECS = {
     "cour_palais_1987": _EquationSpec(
         function=cour_palais_1987,
@@ -872,58 +909,10 @@ _SPECS = {
         regimes=_multi_shock_regimes,
         default_angle_cap=75.0,
     ),
-    "ryan_2008_aluminium": _EquationSpec(
-        function=ryan_2008_aluminium,
-        layer_thicknesses=("front_sheet_thickness", "rear_sheet_thickness"),
-        reference=_RYAN_2008,
-        status=_SECOND_HAND,
-        validity=_PANEL_SPEED.describe(),
-        quantities=_sheet_quantities(yield_from_rear=True) + (_PUBLISHED_MLI_QUANTITY,),
-        material_keys=("front_sheet_material", "rear_sheet_material"),
-        build=_build_ryan("aluminium"),
-        ranges=lambda parameters: (_PANEL_SPEED,),
-        regimes=_panel_regimes("aluminium"),
-    ),
-    "ryan_2008_cfrp": _EquationSpec(
-        function=ryan_2008_cfrp,
-        layer_thicknesses=("front_sheet_thickness", "rear_sheet_thickness"),
-        reference=_RYAN_2008,
-        status=_SECOND_HAND,
-        validity=_PANEL_SPEED.describe(),
-        quantities=_sheet_quantities(yield_from_rear=False) + (_PUBLISHED_MLI_QUANTITY,),
-        material_keys=("front_sheet_material", "rear_sheet_material"),
-        build=_build_ryan("cfrp"),
-        ranges=lambda parameters: (_PANEL_SPEED,),
-        regimes=_panel_regimes("cfrp"),
-    ),
-    "schafer_2008_aluminium": _EquationSpec(
-        function=schafer_2008_aluminium,
-        layer_thicknesses=("wall_thickness",),
-        reference=_SCHAFER_2008,
-        status=_SECOND_HAND,
-        validity=f"{_TRIPLE_ANGLE.describe()}; {_PANEL_SPEED.describe()}",
-        quantities=_triple_wall_quantities(outer_density_in_equation=False),
-        material_keys=("outer_sheet_material", "inner_sheet_material", "wall_material"),
-        build=_build_triple_wall("aluminium"),
-        ranges=lambda parameters: (_TRIPLE_ANGLE, _PANEL_SPEED),
-        regimes=_panel_regimes("aluminium"),
-        default_angle_cap=65.0,
-        notice=_TRIPLE_WALL_NOTICE,
-    ),
-    "schafer_2008_cfrp": _EquationSpec(
-        function=schafer_2008_cfrp,
-        layer_thicknesses=("wall_thickness",),
-        reference=_SCHAFER_2008,
-        status=_SECOND_HAND,
-        validity=f"{_TRIPLE_ANGLE.describe()}; {_PANEL_SPEED.describe()}",
-        quantities=_triple_wall_quantities(outer_density_in_equation=True),
-        material_keys=("outer_sheet_material", "inner_sheet_material", "wall_material"),
-        build=_build_triple_wall("cfrp"),
-        ranges=lambda parameters: (_TRIPLE_ANGLE, _PANEL_SPEED),
-        regimes=_panel_regimes("cfrp"),
-        default_angle_cap=65.0,
-        notice=_TRIPLE_WALL_NOTICE,
-    ),
+    "ryan_2008_aluminium": _panel_spec(ryan_2008_aluminium, "aluminium"),
+    "ryan_2008_cfrp": _panel_spec(ryan_2008_cfrp, "cfrp"),
+    "schafer_2008_aluminium": _triple_wall_spec(schafer_2008_aluminium, "aluminium"),
+    "schafer_2008_cfrp": _triple_wall_spec(schafer_2008_cfrp, "cfrp"),
     "christiansen_2009_mli": _EquationSpec(
         function=christiansen_2009_mli,
         layer_thicknesses=("wall_thickness",),
