@@ -294,6 +294,32 @@ def test_rays_leaving_a_curved_surface_do_not_hit_it():
         assert engine.last_run["rays"] > 0
 
 
+@pytest.mark.parametrize("settings", SETTINGS)
+def test_parts_touching_at_a_vertex_keep_their_own_hull_shortcut(settings):
+    """Two boxes touching at one corner (a mast tip on a dish) form one part but two
+    edge-connected groups: every face lies in a plane of its own group's hull, so the shortcut
+    applies to all of them, and the counts are still those of the brute-force oracle and of
+    tracing every ray."""
+    a = box([1.0, 1.0, 1.0], (0.5, 0.5, 0.5), subdivisions=1)
+    b = box([1.0, 2.0, 0.5], (1.5, 2.0, 1.25), subdivisions=1)
+    vertices, faces = combine(a, b)
+    engine = VisibilityEngine(vertices, faces, **settings)
+    assert (engine.face_layers == 0).all()  # one part ...
+    np.testing.assert_array_equal(engine._face_group, np.repeat([0, 1], [len(a[1]),
+                                                                         len(b[1])]))
+    assert (engine._face_flags & 2).all()  # ... and every face on its group's hull
+    directions = fibonacci_directions(40)
+    counts = np.hstack([c for _, _, c in engine.iter_counts(directions)])
+    reference = (adaptive_counts_reference if "refine_level" in settings
+                 else uniform_counts_reference)
+    np.testing.assert_array_equal(counts, reference(engine, vertices, faces, directions))
+    rays = engine.last_run["rays"]
+    engine._face_flags[:] = 0
+    np.testing.assert_array_equal(np.hstack([c for _, _, c in engine.iter_counts(directions)]),
+                                  counts)
+    assert engine.last_run["rays"] > rays
+
+
 def test_self_intersecting_parts_bury_what_is_inside():
     """Two boxes pushed into each other (as CAD exports overlap parts): the faces lying inside
     the other box are dark in every direction, the others are partly lit."""

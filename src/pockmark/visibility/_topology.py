@@ -3,7 +3,9 @@
 * Vertices at the same position are one *position*, whatever their index (an STL triangle soup
   and a welded mesh give the same answers).
 * Faces joined through shared positions form a *part* (connected component); parts are ranked
-  by their first face, so a part appended later ranks later.
+  by their first face, so a part appended later ranks later. Faces joined through shared edges
+  form an *edge-connected group*, finer where parts touch at a single position; the engine's
+  part-hull shortcut works on these groups.
 * A part is *closed* when every edge of its non-degenerate faces is used exactly once in each
   direction (a closed, consistently oriented surface). A line that meets a closed part also
   leaves it through a face turned toward the line's direction, so the engine lets back faces of
@@ -60,11 +62,46 @@ def part_ranks(face_positions, n_positions):
     b = np.concatenate([face_positions[:, 1], face_positions[:, 2]])
     graph = coo_matrix((np.ones(len(a), dtype=np.int8), (a, b)), shape=(n_positions, n_positions))
     _, label_of_position = connected_components(graph, directed=False)
-    face_label = label_of_position[face_positions[:, 0]]
+    return _ranked_by_first_face(label_of_position[face_positions[:, 0]])
+
+
+def _ranked_by_first_face(face_label):
+    """Renumber component labels of the faces 0, 1, ... in the order of their first face."""
     labels, first_face = np.unique(face_label, return_index=True)
     rank_of_label = np.empty(labels.max() + 1 if len(labels) else 0, dtype=np.int64)
     rank_of_label[labels[np.argsort(first_face, kind="stable")]] = np.arange(len(labels))
     return rank_of_label[face_label]
+
+
+def edge_groups(face_positions):
+    """Rank of each face's edge-connected group (faces joined through shared edges).
+
+    Parts (:func:`part_ranks`) that touch at a single position split into several groups, e.g.
+    a mast whose tip is a vertex of a dish. Groups are ranked by their first face.
+
+    Parameters
+    ----------
+    face_positions : (m, 3) int
+        Position index of each face corner.
+
+    Returns
+    -------
+    (m,) int
+    """
+    m = face_positions.shape[0]
+    following = np.roll(face_positions, -1, axis=1)
+    low = np.minimum(face_positions, following).reshape(-1)
+    high = np.maximum(face_positions, following).reshape(-1)
+    # One integer key per undirected edge (a 1-d unique is much faster than a row unique).
+    _, edge_id = np.unique(low * (int(face_positions.max()) + 1) + high, return_inverse=True)
+    edge_id = edge_id.reshape(-1)
+    n_edges = int(edge_id.max()) + 1
+    # Bipartite graph: faces 0..m-1, edges m..m+n_edges-1.
+    face = np.repeat(np.arange(m), 3)
+    graph = coo_matrix((np.ones(3 * m, dtype=np.int8), (face, m + edge_id)),
+                       shape=(m + n_edges, m + n_edges))
+    _, label = connected_components(graph, directed=False)
+    return _ranked_by_first_face(label[:m])
 
 
 def closed_parts(face_positions, face_part, include, n_positions):

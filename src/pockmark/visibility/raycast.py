@@ -74,8 +74,8 @@ _COINCIDENT_ALIGNMENT = 0.99
 #: direction at least this much (n·u); below, its rays are traced (round-off margin, see
 #: :func:`pockmark.visibility._topology.hull_faces`).
 _HULL_MIN_COSINE = 1e-3
-#: The part-hull shortcut tests a ray against every other part's box; beyond this many parts
-#: it is not used.
+#: The part-hull shortcut tests a ray against every other group's box; beyond this many
+#: groups (and parts) it is not used.
 _MAX_PARTS_FOR_SHORTCUT = 256
 
 _SAMPLING_CHOICES = ("adaptive", "uniform")
@@ -399,10 +399,11 @@ class VisibilityEngine:
 
     **Shortcuts that trace nothing.** Both samplings skip rays whose answer is certain: a
     point on a face that lies in a plane of the convex hull of the whole mesh, and turns toward
-    u by at least 1e-3, sees nothing in front of it; a point on a face in a plane of its own
-    part's convex hull cannot be stopped by its own part, and is lit if its ray misses the
-    boxes of all other parts (for meshes of up to 256 parts). These give the same answer as
-    the traced ray, not an approximation; they cut the rays of the model above by half.
+    u by at least 1e-3, sees nothing in front of it; a point on a face in a plane of the convex
+    hull of its own group (the faces joined to it through shared edges) cannot be stopped by
+    that group, and is lit if its ray misses the boxes of all other groups (for meshes of up
+    to 256 groups; else parts are used). These give the same answer as the traced ray, not an
+    approximation; they cut the rays of the model above by half.
 
     References
     ----------
@@ -504,11 +505,17 @@ class VisibilityEngine:
         self.face_layers = np.ascontiguousarray(_topology.effective_layers(part, user_layers))
         self._user_layers = user_layers
         self._max_layer = int(self.face_layers.max())
-        self._face_part = np.ascontiguousarray(part, dtype=np.int64)
         hull = _topology.hull_faces(positions, face_positions, normals, valid, self.diagonal)
-        n_parts = int(part.max()) + 1
-        if n_parts <= _MAX_PARTS_FOR_SHORTCUT:
-            part_hull = _topology.part_hull_faces(positions, face_positions, part, normals,
+        # The kernels' part-hull shortcut works on edge-connected groups where there are not
+        # too many: finer than parts (a mast whose tip is a vertex of a dish), so more faces
+        # lie in a plane of their group's hull (the argument holds for any set of faces); 14 %
+        # fewer rays on the benchmark vehicle, 20 % with uniform sampling.
+        group = _topology.edge_groups(face_positions)
+        if int(group.max()) + 1 > _MAX_PARTS_FOR_SHORTCUT:
+            group = part
+        self._face_group = np.ascontiguousarray(group, dtype=np.int64)
+        if int(group.max()) + 1 <= _MAX_PARTS_FOR_SHORTCUT:
+            part_hull = _topology.part_hull_faces(positions, face_positions, group, normals,
                                                   valid, self.diagonal)
         else:
             part_hull = np.zeros(len(faces), dtype=bool)
@@ -535,10 +542,10 @@ class VisibilityEngine:
         self._face_flags = np.ascontiguousarray(
             hull * _kernels.FACE_HULL + part_hull * _kernels.FACE_PART_HULL
             + (band != 0) * _kernels.FACE_BAND, dtype=np.uint8)
-        # Boxes of the parts, grown beyond every tolerance (a covering surface of a later
-        # layer within the coincidence tolerance lies inside its part's grown box).
+        # Boxes of the groups, grown beyond every tolerance (a covering surface of a later
+        # layer within the coincidence tolerance lies inside its group's grown box).
         self._part_boxes = _topology.part_boxes(
-            positions, face_positions, part, valid,
+            positions, face_positions, group, valid,
             margin + self.ray_offset + 1e-9 * max(self.diagonal, float(np.abs(used).max())))
         self._cache = _make_cache(cache)
         self._geometry_digest = None
@@ -854,7 +861,7 @@ class VisibilityEngine:
                               self._probe_layer, self._probe_face_start, self._probe_faces,
                               self._trace_order, self._vertices, self._faces,
                               self._face_probes, self.face_normals, self.face_layers,
-                              self._face_flags, self._face_part, self._part_boxes,
+                              self._face_flags, self._face_group, self._part_boxes,
                               _HULL_MIN_COSINE, self.refine_level, need, use_need,
                               directions, delta, above, below, bvh.node_bounds,
                               bvh.node_start, bvh.node_count, bvh.node_parent, bvh.tri_v0,
@@ -867,7 +874,7 @@ class VisibilityEngine:
                 rays = kernel(start, stop, _BLOCK_SIZE, self._trace_order, self._vertices,
                               self._faces, self._labelling, _CORNER_ORDERS, self._weights,
                               self.face_normals, self.face_layers, self._face_flags,
-                              self._face_part, self._part_boxes, _HULL_MIN_COSINE, need,
+                              self._face_group, self._part_boxes, _HULL_MIN_COSINE, need,
                               use_need, directions,
                               delta, above, below, bvh.node_bounds, bvh.node_start,
                               bvh.node_count, bvh.node_parent, bvh.tri_v0, bvh.tri_e1,
