@@ -15,7 +15,8 @@ CAUTIONS = (
     "engineering model and the Grün 1985 meteoroid flux as implemented here), on the ballistic "
     "limit equations and their validity ranges, and on the mesh and its shield tags.",
     "Several model constants in this version were implemented from memory of the published "
-    "sources and are marked so in the code; verify them against the sources before relying on results.",
+    "sources, and those of the multi-layer shield equations were read in a second-hand "
+    "transcription; the code marks which. Verify them against the sources before relying on results.",
     "The analytic environment models are dated; for design and certification use the environment "
     "models and standards that your agency or customer prescribes.",
     "Results are not a certification. Protection requirements are verified under the applicable "
