@@ -15,6 +15,7 @@ from pockmark.cli.environment import environment  # noqa: E402
 from pockmark.cli.limits import limits  # noqa: E402
 from pockmark.cli.report import report  # noqa: E402
 from pockmark.cli.run import run  # noqa: E402
+from pockmark.cli.sweep import sweep  # noqa: E402
 from pockmark.cli.trade import trade  # noqa: E402
 
 
@@ -36,6 +37,7 @@ cli.add_command(compare)
 cli.add_command(limits)
 cli.add_command(report)
 cli.add_command(trade)
+cli.add_command(sweep)
 
 if __name__ == "__main__":
     cli()

@@ -582,7 +582,59 @@ def _read_with_bases(path, chain):
     return [(resolved, text), *base_entries], _merge(base_document, document)
 
 
-def load_case(path):
+def parse_override(text):
+    """``"phases.0.altitude=500"`` → ``(("phases", 0, "altitude"), 500.0)``.
+
+    The key is a dotted path (integers index arrays of tables); the value is read as a TOML
+    value (numbers, ``true``, ``"text"``, ``[1, 2]``); a bare word is taken as a string.
+
+    Raises
+    ------
+    ConfigError
+        For a text without ``=`` or with an empty key.
+    """
+    key, sep, value = str(text).partition("=")
+    key = key.strip()
+    if not sep or not key or any(not part for part in key.split(".")):
+        raise ConfigError(f"override {text!r}: write KEY=VALUE with a dotted key, e.g. "
+                          f"phases.0.altitude=500")
+    try:
+        parsed = tomllib.loads(f"v = {value.strip()}")["v"]
+    except tomllib.TOMLDecodeError:
+        parsed = value.strip()
+    keys = tuple(int(part) if part.isdigit() else part for part in key.split("."))
+    if isinstance(parsed, int) and not isinstance(parsed, bool):
+        parsed = float(parsed) if keys[-1] not in _INTEGER_KEYS else parsed
+    return keys, parsed
+
+
+#: Keys whose values are whole numbers, kept as integers when given on the command line.
+_INTEGER_KEYS = {"directions", "debris_azimuth_bins", "samples_per_face", "seed", "threads",
+                 "orbit_samples", "spin_steps", "count", "nextel_layers", "kevlar_layers",
+                 "bumper_layers"}
+
+
+def _apply_override(document, keys, value, path):
+    """Set ``document[keys...] = value`` in the merged case document."""
+    where = ".".join(str(k) for k in keys)
+    table = document
+    for depth, key in enumerate(keys[:-1]):
+        if isinstance(table, list):
+            if not isinstance(key, int) or not 0 <= key < len(table):
+                raise ConfigError(f"{path}: override {where}: {'.'.join(map(str, keys[:depth]))} "
+                                  f"has {len(table)} entries; use an index from 0 to {len(table) - 1}")
+            table = table[key]
+        elif isinstance(table, dict):
+            table = table.setdefault(key, {})
+        else:
+            raise ConfigError(f"{path}: override {where}: {'.'.join(map(str, keys[:depth]))} "
+                              f"is a value, not a table")
+    if not isinstance(table, dict):
+        raise ConfigError(f"{path}: override {where}: the parent is not a table")
+    table[keys[-1]] = value
+
+
+def load_case(path, overrides=()):
     """Read and validate a case file.
 
     Parameters
@@ -591,6 +643,9 @@ def load_case(path):
         The TOML case file. Relative paths inside it are relative to its folder. A case may
         ``extends = "base.toml"``: it then states only what changes; its tables override the
         base's key by key, and its ``[[panels]]`` and ``[[retag]]`` are added to the base's.
+    overrides : sequence of (keys, value)
+        Values set on top of the file before validation (see :func:`parse_override`), e.g.
+        ``[(("phases", 0, "altitude"), 500.0)]``; they are checked like the file's own.
 
     Returns
     -------
@@ -603,6 +658,8 @@ def load_case(path):
     """
     path = Path(path)
     entries, document = _read_with_bases(path, chain=())
+    for keys, value in overrides:
+        _apply_override(document, tuple(keys), value, path)
     text = entries[0][1]
     sources = _Sources(entries)
     top = _Reader(path, sources, document, ())
