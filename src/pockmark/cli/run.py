@@ -79,7 +79,12 @@ def _run(case_file, out_dir, overwrite, threads, convergence, report, progress_b
     from pockmark.report.files import write_run
     from pockmark.report.summary import build_summary
     from pockmark.risk.assess import assess
-    from pockmark.risk.uncertainty import discretisation_estimate, environment_band, resolution_variant
+    from pockmark.risk.uncertainty import (
+        ballistic_limit_band,
+        discretisation_estimate,
+        environment_band,
+        resolution_variant,
+    )
 
     case = load_case(case_file)
     if threads is not None:
@@ -99,6 +104,8 @@ def _run(case_file, out_dir, overwrite, threads, convergence, report, progress_b
             summary["convergence"] = discretisation_estimate(penetrations, fine["expected_penetrations"], 2.0)
     by_source = {source: entry["expected_penetrations"] for source, entry in summary["by_source"].items()}
     summary["environment_band"] = environment_band(by_source, case.uncertainty_factors or {})
+    if case.ballistic_limit_factor is not None:
+        summary["ballistic_limit_band"] = ballistic_limit_band(assessment, case.ballistic_limit_factor)
     write_run(assessment, summary, out_dir)
     if report:
         from pockmark.report.html import write_report

@@ -152,6 +152,7 @@ class Case:
     panels: tuple = ()
     retags: tuple = ()
     upgrades: tuple = ()  # candidate shield upgrades (Upgrade) for `pockmark trade`
+    ballistic_limit_factor: float | None = None  # ×/÷ on every critical diameter, for the PNP band
 
     @property
     def input_files(self):
@@ -817,9 +818,12 @@ def load_case(path, overrides=()):
     uncertainty = _table(top, "uncertainty", required=False) or {}
     reader = _Reader(path, sources, uncertainty, ("uncertainty",))
     resolution_check = reader.get("resolution_check", str, default="coarse", check=_choice(("coarse", "none")))
+    ballistic_limit_factor = reader.get(
+        "ballistic_limit", float, default=None,
+        check=lambda v: None if v >= 1 else "must be a factor >= 1 on every critical diameter")
     factors = {}
     for key in uncertainty:
-        if key != "resolution_check":
+        if key not in ("resolution_check", "ballistic_limit"):
             factors[key] = reader.get(key, float, check=lambda v: None if v >= 1 else "must be a factor >= 1 on the source's flux")
     reader.finish()
     components = _load_components(top, path, sources)
@@ -853,4 +857,5 @@ def load_case(path, overrides=()):
         uncertainty_factors=factors,
         materials=materials,
         resolution_check=resolution_check,
+        ballistic_limit_factor=ballistic_limit_factor,
     )

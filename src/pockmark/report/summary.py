@@ -276,6 +276,10 @@ def format_summary(summary, out_dir=None):
         low, high = band["pnp_range"]
         factors = ", ".join(f"{s} ×/÷{f:g}" for s, f in band["factors"].items())
         add(f"    environment band ({factors}): PNP {low:.5f}–{high:.5f}")
+    band = summary.get("ballistic_limit_band")
+    if band:
+        low, high = band["pnp_range"]
+        add(f"    ballistic-limit band (critical diameters ×/÷{band['factor']:g}): PNP {low:.5f}–{high:.5f}")
     add(f"  Expected impacts ≥ {summary['impact_diameter_cm'] * 10:g} mm         = {summary['expected_impacts']:.4g}")
     add("")
     header = f"  {'source':<12}{'impacts':>12}{'penetrations':>15}{'PNP':>10}"

@@ -22,7 +22,8 @@ from pockmark.errors import ConfigError, InputError, ModelRangeWarning
 from pockmark.risk.assess import case_materials
 from pockmark.risk.impacts import penetration_table
 
-__all__ = ["Candidate", "candidates", "tag_penetrations", "trade_study", "DEFAULT_STEPS"]
+__all__ = ["Candidate", "candidates", "tag_components", "tag_penetrations", "trade_study",
+           "DEFAULT_STEPS"]
 
 #: Factors on each resisting layer's thickness tried when the case lists no [[upgrades]].
 DEFAULT_STEPS = (1.25, 1.5, 2.0, 3.0)
@@ -102,7 +103,7 @@ def tag_penetrations(assessment, tag, shield):
     return total
 
 
-def _tag_components(assessment):
+def tag_components(assessment):
     """Tag name → its component (every face of a tag is in the same component)."""
     vehicle = assessment.vehicle
     mesh = assessment.mesh
@@ -156,7 +157,7 @@ def trade_study(assessment, steps=DEFAULT_STEPS):
     mesh = assessment.mesh
     shields = assessment.shields
     case = assessment.case
-    component_of = _tag_components(assessment)
+    component_of = tag_components(assessment)
     critical_tags = [tag for tag, c in component_of.items() if c.role == "critical"]
     targets = [("vehicle", tuple(critical_tags), case.pnp_requirement)]
     targets += [(f"component {c.name}", tuple(t for t in c.tags if t in component_of),

@@ -10,6 +10,10 @@ Two separate things bound a PNP:
 * **environment**: the flux models themselves are uncertain, by factors an engineer states
   per source (e.g. 3 on debris, 2 on meteoroids, common practice, no source). The PNP band
   takes every source's expected penetrations up and down by its factor.
+* **ballistic limits**: the equations are fits with scatter (published shots fail up to
+  several per cent on the wrong side of the curves). The PNP band scales every critical
+  diameter up and down by a stated factor and recomputes the penetrations exactly from the
+  run's stored exposure.
 """
 
 import dataclasses
@@ -52,4 +56,37 @@ def environment_band(by_source, factors):
         "factors": {source: factors.get(source, 1.0) for source in by_source},
         "expected_penetrations_range": [high, low],
         "pnp_range": [math.exp(-low), math.exp(-high)],
+    }
+
+
+class _ScaledShield:
+    """A shield whose critical diameters are all multiplied by ``factor``."""
+
+    def __init__(self, shield, factor):
+        self.shield = shield
+        self.factor = factor
+
+    def critical_diameter(self, impact_velocity, impact_angle, projectile_density):
+        return self.factor * self.shield.critical_diameter(impact_velocity, impact_angle,
+                                                          projectile_density)
+
+
+def ballistic_limit_band(assessment, factor):
+    """PNP range with every critical diameter of the critical tags ×/÷ ``factor`` (≥ 1).
+
+    Exact for the run's discretisation: each tag's penetrations are recomputed from the
+    exposure the run stored (:func:`pockmark.risk.trade.tag_penetrations`).
+    """
+    from pockmark.risk.trade import tag_components, tag_penetrations
+
+    tags = [tag for tag, c in tag_components(assessment).items() if c.role == "critical"]
+    shields = assessment.shields
+    weaker = sum(tag_penetrations(assessment, t, _ScaledShield(shields[t], 1.0 / factor))
+                 for t in tags)
+    stronger = sum(tag_penetrations(assessment, t, _ScaledShield(shields[t], factor))
+                   for t in tags)
+    return {
+        "factor": factor,
+        "expected_penetrations_range": [stronger, weaker],
+        "pnp_range": [math.exp(-weaker), math.exp(-stronger)],
     }
