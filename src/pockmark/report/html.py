@@ -707,6 +707,7 @@ def _findings(summary, pareto, regions):
         items.append(
             f"{_e(name.capitalize())} causes {_pct(entry['expected_penetrations'] / total)} of the critical penetrations."
         )
+    items += _uncertainty_findings(summary)
     components = summary.get("by_component") or {}
     for name, entry in components.items():
         requirement = entry.get("requirement")
@@ -725,6 +726,28 @@ def _findings(summary, pareto, regions):
     if not items:
         return ""
     return '<ul class="findings">' + "".join(f"<li>{item}</li>" for item in items) + "</ul>"
+
+
+def _uncertainty_findings(summary):
+    """One line per uncertainty the run states: discretisation, environment, ballistic limits."""
+    items = []
+    for key, label in (("discretisation", "Resolution error"), ("convergence", "Convergence check")):
+        entry = summary.get(key)
+        if isinstance(entry, dict) and "pnp_range" in entry:
+            low, high = entry["pnp_range"]
+            items.append(f"{label}: about {_pct(entry.get('relative_error'))} of the expected "
+                         f"penetrations ({_e(entry.get('method', ''))}), PNP {_pnp(low)}–{_pnp(high)}.")
+    band = summary.get("environment_band")
+    if isinstance(band, dict) and any(f != 1.0 for f in (band.get("factors") or {}).values()):
+        low, high = band["pnp_range"]
+        factors = ", ".join(f"{_e(s)} ×/÷{f:g}" for s, f in band["factors"].items())
+        items.append(f"Environment band ({factors}): PNP {_pnp(low)}–{_pnp(high)}.")
+    band = summary.get("ballistic_limit_band")
+    if isinstance(band, dict):
+        low, high = band["pnp_range"]
+        items.append(f"Ballistic-limit band (every critical diameter ×/÷{band['factor']:g}): "
+                     f"PNP {_pnp(low)}–{_pnp(high)}.")
+    return items
 
 
 def _group_table(summary, group, word, table_id):

@@ -150,3 +150,21 @@ def test_references_mirror_the_readme():
         doi = re.search(r"doi:(\S+?)[.,]?(?:\s|$)", body)
         if doi:
             assert doi.group(1) in ours, f"README reference {number}: DOI {doi.group(1)} missing"
+
+
+def test_report_states_the_uncertainty_bands(tmp_path, make_run_dir):
+    """The discretisation error and the environment and ballistic-limit bands of the run's
+    summary appear among the findings, with their PNP ranges."""
+    import json
+
+    run_dir = make_run_dir(tmp_path / "run")
+    summary = json.loads((run_dir / "summary.json").read_text(encoding="utf-8"))
+    summary["discretisation"] = {"method": "rerun at 0.5 × the resolution", "relative_error": 0.012,
+                                 "pnp_range": [0.81, 0.83]}
+    summary["environment_band"] = {"factors": {"debris": 3.0}, "pnp_range": [0.5, 0.9]}
+    summary["ballistic_limit_band"] = {"factor": 1.2, "pnp_range": [0.7, 0.88]}
+    (run_dir / "summary.json").write_text(json.dumps(summary), encoding="utf-8")
+    document = write_report(run_dir, pictures=False).read_text(encoding="utf-8")
+    assert "Resolution error: about 1.2 %" in document
+    assert "Environment band (debris ×/÷3)" in document
+    assert "Ballistic-limit band (every critical diameter ×/÷1.2)" in document
