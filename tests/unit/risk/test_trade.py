@@ -20,7 +20,13 @@ changes = { rear_wall_thickness = 0.6 }
 
 [[upgrades]]
 tag = "panel"
-shield = { equation = "christiansen_1993", bumper_thickness = 0.1, bumper_material = "Al6061-T6", standoff = 5.0, rear_wall_thickness = 0.2, rear_wall_material = "Al6061-T6" }
+[upgrades.shield]
+equation = "christiansen_1993"
+bumper_thickness = 0.1
+bumper_material = "Al6061-T6"
+standoff = 5.0
+rear_wall_thickness = 0.2
+rear_wall_material = "Al6061-T6"
 
 [[upgrades]]
 name = "same hull"
