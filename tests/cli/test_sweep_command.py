@@ -53,7 +53,7 @@ def test_bad_sweeps_are_one_line_errors(shadowed_box_case, tmp_path):
 
 
 def test_override_parsing():
-    assert parse_override("phases.0.altitude=500") == (("phases", 0, "altitude"), 500.0)
+    assert parse_override("phases.0.altitude=500.5") == (("phases", 0, "altitude"), 500.5)
     assert parse_override("analysis.directions=300") == (("analysis", "directions"), 300)
     assert parse_override("environment.meteoroid.vehicle_motion=false")[1] is False
     assert parse_override('environment.debris.projectile_density="kessler_1991"')[1] == "kessler_1991"

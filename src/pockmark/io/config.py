@@ -584,7 +584,7 @@ def _read_with_bases(path, chain):
 
 
 def parse_override(text):
-    """``"phases.0.altitude=500"`` → ``(("phases", 0, "altitude"), 500.0)``.
+    """``"phases.0.altitude=500"`` → ``(("phases", 0, "altitude"), 500)``.
 
     The key is a dotted path (integers index arrays of tables); the value is read as a TOML
     value (numbers, ``true``, ``"text"``, ``[1, 2]``); a bare word is taken as a string.
@@ -604,15 +604,8 @@ def parse_override(text):
     except tomllib.TOMLDecodeError:
         parsed = value.strip()
     keys = tuple(int(part) if part.isdigit() else part for part in key.split("."))
-    if isinstance(parsed, int) and not isinstance(parsed, bool):
-        parsed = float(parsed) if keys[-1] not in _INTEGER_KEYS else parsed
+    # Integers stay integers: the case reader takes them where a float is wanted.
     return keys, parsed
-
-
-#: Keys whose values are whole numbers, kept as integers when given on the command line.
-_INTEGER_KEYS = {"directions", "debris_azimuth_bins", "samples_per_face", "seed", "threads",
-                 "orbit_samples", "spin_steps", "count", "nextel_layers", "kevlar_layers",
-                 "bumper_layers"}
 
 
 def _apply_override(document, keys, value, path):
